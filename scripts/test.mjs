@@ -1,0 +1,94 @@
+// `npm test`: the same set-up as `npm start` against a test database created
+// afresh each run, then the whole Vitest suite (unit, integration over real
+// HTTP and PostgreSQL, browser tests in Debian's Chromium). The last line
+// printed is the runner's summary.
+import { existsSync, readFileSync, rmSync, mkdirSync } from 'node:fs';
+import { join } from 'node:path';
+import { spawnSync } from 'node:child_process';
+import { ensureDependencies, step, run, build, startChild, waitForHttp, mailEnv, root } from './lib/setup.mjs';
+
+ensureDependencies();
+const { ensureEnv } = await import('./lib/env.mjs');
+const pg = await import('./lib/postgres.mjs');
+
+const fileEnv = ensureEnv();
+const resultsDir = join(root, 'test-results');
+rmSync(resultsDir, { recursive: true, force: true });
+mkdirSync(resultsDir, { recursive: true });
+
+if (!existsSync('/usr/bin/chromium')) {
+	step('Installing Chromium from Debian packages for browser tests');
+	if (process.getuid?.() !== 0) throw new Error('Chromium is missing and this is not root: run `sudo apt-get install -y chromium`.');
+	run('apt-get', ['update']);
+	run('apt-get', ['install', '-y', '--no-install-recommends', 'chromium']);
+}
+
+step('Starting PostgreSQL on 127.0.0.1');
+const wasRunning = await pg.isRunning().catch(() => false);
+await pg.ensurePostgres();
+const testDb = 'spanline_test';
+await pg.recreateDatabase(testDb);
+
+const port = Number(process.env.SPANLINE_TEST_PORT ?? 3107);
+const origin = `http://127.0.0.1:${port}`;
+const smtpPort = Number(process.env.SPANLINE_TEST_SMTP_PORT ?? 2526);
+const mailHttpPort = Number(process.env.SPANLINE_TEST_MAIL_HTTP_PORT ?? 2581);
+const env = {
+	...process.env,
+	DATABASE_URL: pg.databaseUrl(testDb),
+	AUTH_SECRET: fileEnv.AUTH_SECRET,
+	SPANLINE_ENV: 'test',
+	...mailEnv(smtpPort, mailHttpPort),
+	HOST: '127.0.0.1',
+	PORT: String(port),
+	ORIGIN: origin,
+	BODY_SIZE_LIMIT: 'Infinity',
+	SPANLINE_TEST_URL: origin
+};
+
+step(`Migrating and seeding the test database '${testDb}'`);
+run('npx', ['tsx', 'scripts/migrate.ts', 'up'], { env, quiet: true });
+run('npx', ['tsx', 'scripts/seed.ts'], { env, quiet: true });
+
+build(env);
+
+const children = [];
+let exitCode = 1;
+let summary = "Tests: 0 passed, 1 failed";
+try {
+	step('Starting the mail fake and the built server');
+	children.push(
+		await startChild('mail fake', 'node', ['scripts/mail-fake.mjs'], {
+			env,
+			ready: /mail fake ready/,
+			logFile: join(resultsDir, 'mail-fake.log')
+		})
+	);
+	children.push(
+		await startChild('app server', 'node', ['build'], { env, ready: /Listening on/, logFile: join(resultsDir, 'server.log') })
+	);
+	await waitForHttp(`${origin}/api/v1/health`);
+
+	step('Running the test suite (Vitest: unit, integration, e2e)');
+	const jsonFile = join(resultsDir, 'vitest.json');
+	const vitest = spawnSync(
+		'npx',
+		['vitest', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${jsonFile}`, ...process.argv.slice(2)],
+		{ cwd: root, env, stdio: 'inherit' }
+	);
+	exitCode = vitest.status ?? 1;
+	if (existsSync(jsonFile)) {
+		const report = JSON.parse(readFileSync(jsonFile, 'utf8'));
+		const failed = report.numFailedTests + (report.numRuntimeErrorTestSuites ?? 0);
+		if (report.numTotalTests === 0) exitCode = 1;
+		summary = `Tests: ${report.numPassedTests} passed, ${failed} failed` +
+			(report.numPendingTests ? `, ${report.numPendingTests} skipped` : '');
+	} else {
+		summary = "Tests: 0 passed, 1 failed";
+	}
+} finally {
+	for (const child of children) child.kill('SIGTERM');
+	if (!wasRunning && !process.env.SPANLINE_KEEP_DB) await pg.stopPostgres().catch(() => {});
+}
+console.log(summary);
+process.exit(exitCode);
