@@ -1,0 +1,30 @@
+// Connection settings, from the environment only (scripts run this code through
+// tsx, where SvelteKit's $env modules do not exist).
+import type { Options } from 'sequelize';
+import pg from 'pg';
+
+/** DATABASE_URL, or a clear error when it is missing. */
+export function databaseUrlFromEnv(env: NodeJS.ProcessEnv = process.env): string {
+	const url = env.DATABASE_URL;
+	if (!url) {
+		throw new Error(
+			'DATABASE_URL is not set. `npm start` sets it; by hand use e.g. postgres://spanline:<password>@127.0.0.1:55432/spanline (password in .env).'
+		);
+	}
+	return url;
+}
+
+/** Sequelize options shared by the app, the scripts and the tests. */
+export function sequelizeOptions(): Options {
+	return {
+		dialect: 'postgres',
+		// Passed explicitly so the bundler includes pg and Sequelize does not require() it dynamically.
+		dialectModule: pg,
+		logging: false,
+		define: { underscored: true },
+		// A down database must be reported within about 2 s, not hang a request.
+		dialectOptions: { connectionTimeoutMillis: 2000, statement_timeout: 30_000 },
+		pool: { max: 10, min: 0, acquire: 3000, idle: 10_000 },
+		retry: { max: 0 }
+	};
+}
