@@ -9,6 +9,7 @@ import * as m20261201T2320 from './migrations/2026-12-01T2320-create-users-and-a
 import * as m20261201T2330 from './migrations/2026-12-01T2330-create-facilities-campaigns-configurations';
 import * as m20261201T2340 from './migrations/2026-12-01T2340-create-runs-and-measurements';
 import * as m20261201T2350 from './migrations/2026-12-01T2350-create-predictions-deltas-audit';
+import * as m20261202T0100 from './migrations/2026-12-02T0100-audit-client-address';
 import type { MigrationModule } from './migrations/types';
 
 /** Append new migrations at the end, in timestamp order. */
@@ -16,7 +17,8 @@ export const MIGRATIONS: ReadonlyArray<{ name: string; module: MigrationModule }
 	{ name: '2026-12-01T2320-create-users-and-auth', module: m20261201T2320 },
 	{ name: '2026-12-01T2330-create-facilities-campaigns-configurations', module: m20261201T2330 },
 	{ name: '2026-12-01T2340-create-runs-and-measurements', module: m20261201T2340 },
-	{ name: '2026-12-01T2350-create-predictions-deltas-audit', module: m20261201T2350 }
+	{ name: '2026-12-01T2350-create-predictions-deltas-audit', module: m20261201T2350 },
+	{ name: '2026-12-02T0100-audit-client-address', module: m20261202T0100 }
 ];
 
 export const MIGRATIONS_TABLE = 'schema_migrations';
