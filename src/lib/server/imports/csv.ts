@@ -1,0 +1,402 @@
+/**
+ * Streaming CSV reading. Bytes come from a Node Readable or any async
+ * iterable of chunks and are never held whole: they are checked for UTF-8
+ * (a strict validator, with the byte offset and line of the first bad byte)
+ * and NUL bytes, then tokenised by csv-parse's streaming parser. Only the
+ * first rows are buffered, to detect the separator, the decimal mark and the
+ * layout (preamble, header, unit row).
+ *
+ * Rows are arrays of cells, never objects keyed by header names, so headers
+ * such as `__proto__` or `constructor` cannot reach any prototype.
+ */
+import { isUtf8 } from 'node:buffer';
+import { Readable } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
+import { parse } from 'csv-parse';
+import { ImportError, fmtCount, resolveLimits, type ImportLimits } from './errors';
+import { detectLayout, type DataRow, type TableHead } from './layout';
+import { looksDecimalComma, looksDecimalPoint } from './numbers';
+
+export type Separator = ',' | ';' | '\t';
+
+export interface CsvFormat {
+	separator: Separator;
+	decimalComma: boolean;
+	/** A UTF-8 byte-order mark was present (and stripped). */
+	bom: boolean;
+}
+
+export interface CsvOptions {
+	/** Force the separator instead of detecting it. */
+	separator?: Separator;
+	/** Force the decimal mark instead of detecting it. */
+	decimalComma?: boolean;
+	limits?: Partial<ImportLimits>;
+	/** Number of records sampled for layout detection (default 60). */
+	sampleRows?: number;
+}
+
+export interface CsvReader extends TableHead {
+	format: CsvFormat;
+	/** The data rows, streamed; iterate once. `row` is the 1-based line number. */
+	rows: AsyncIterable<DataRow>;
+}
+
+export type ByteSource = AsyncIterable<Uint8Array | string> | Iterable<Uint8Array | string>;
+
+/** Wrap a whole buffer as a chunked source (64 KiB slices). */
+export function bufferSource(buf: Uint8Array, chunkSize = 64 * 1024): Iterable<Uint8Array> {
+	return {
+		*[Symbol.iterator]() {
+			for (let i = 0; i < buf.length; i += chunkSize) yield buf.subarray(i, Math.min(buf.length, i + chunkSize));
+		}
+	};
+}
+
+function toBuffer(chunk: Uint8Array | string): Buffer {
+	if (typeof chunk === 'string') return Buffer.from(chunk, 'utf8');
+	return Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk.buffer, chunk.byteOffset, chunk.byteLength);
+}
+
+/** Offset of the first byte that breaks UTF-8 (RFC 3629 §4), or -1. */
+function firstInvalidUtf8(b: Uint8Array): number {
+	let i = 0;
+	while (i < b.length) {
+		const c = b[i];
+		if (c < 0x80) {
+			i++;
+			continue;
+		}
+		let need: number;
+		let min: number;
+		if (c >= 0xc2 && c <= 0xdf) [need, min] = [1, 0x80];
+		else if (c >= 0xe0 && c <= 0xef) [need, min] = [2, 0x800];
+		else if (c >= 0xf0 && c <= 0xf4) [need, min] = [3, 0x10000];
+		else return i;
+		if (i + need >= b.length) return i;
+		let cp = c & (0x3f >> need);
+		for (let k = 1; k <= need; k++) {
+			const d = b[i + k];
+			if (d === undefined || (d & 0xc0) !== 0x80) return i;
+			cp = (cp << 6) | (d & 0x3f);
+		}
+		if (cp < min || cp > 0x10ffff || (cp >= 0xd800 && cp <= 0xdfff)) return i;
+		i += need + 1;
+	}
+	return -1;
+}
+
+function countNewlines(b: Uint8Array, end = b.length): number {
+	let n = 0;
+	let i = -1;
+	const buf = toBuffer(b);
+	while ((i = buf.indexOf(10, i + 1)) !== -1 && i < end) n++;
+	return n;
+}
+
+interface DecodeState {
+	bom: boolean;
+}
+
+/**
+ * Bytes → validated UTF-8 strings. Chunk boundaries may split a character:
+ * the incomplete tail is carried into the next chunk.
+ */
+async function* decodeUtf8(source: ByteSource, state: DecodeState): AsyncGenerator<string> {
+	let carry: Buffer | null = null;
+	let offset = 0; // bytes of the file before `buf` (BOM included)
+	let newlines = 0;
+	let first = true;
+	for await (const chunk of source as AsyncIterable<Uint8Array | string>) {
+		let buf = toBuffer(chunk);
+		if (carry) {
+			buf = Buffer.concat([carry, buf]);
+			carry = null;
+		}
+		if (first) {
+			if (buf.length < 4) {
+				carry = Buffer.from(buf);
+				continue;
+			}
+			first = false;
+			if ((buf[0] === 0xff && buf[1] === 0xfe) || (buf[0] === 0xfe && buf[1] === 0xff)) {
+				throw new ImportError(415, 'encoding', 'the file is UTF-16 text; save it as UTF-8 (CSV UTF-8) and upload again', [
+					{ byteOffset: 0, message: 'UTF-16 byte-order mark at the start of the file' }
+				]);
+			}
+			if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) {
+				state.bom = true;
+				buf = buf.subarray(3);
+				offset = 3;
+			}
+		}
+		let end = buf.length;
+		let i = end - 1;
+		let k = 0;
+		while (i >= 0 && k < 3 && (buf[i] & 0xc0) === 0x80) {
+			i--;
+			k++;
+		}
+		if (i >= 0 && buf[i] >= 0xc0) {
+			const len = buf[i] >= 0xf0 ? 4 : buf[i] >= 0xe0 ? 3 : 2;
+			if (end - i < len) end = i;
+		}
+		const part = end === buf.length ? buf : buf.subarray(0, end);
+		if (end !== buf.length) carry = Buffer.from(buf.subarray(end));
+		check(part, offset, newlines);
+		newlines += countNewlines(part);
+		offset += part.length;
+		if (part.length > 0) yield part.toString('utf8');
+	}
+	if (first && carry) {
+		// Tiny file (< 4 bytes): handle BOM-only and short content here.
+		let buf: Buffer = carry;
+		if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) {
+			state.bom = true;
+			buf = buf.subarray(3);
+			offset = 3;
+		}
+		check(buf, offset, newlines);
+		if (buf.length > 0) yield buf.toString('utf8');
+		return;
+	}
+	if (carry) check(carry, offset, newlines, true);
+}
+
+function check(part: Buffer, offset: number, newlines: number, atEnd = false): void {
+	const nul = part.indexOf(0);
+	const bad = isUtf8(part) && !atEnd ? -1 : Math.max(0, firstInvalidUtf8(part));
+	if (nul !== -1 && (bad === -1 || nul < bad)) {
+		const line = newlines + countNewlines(part, nul) + 1;
+		throw new ImportError(422, 'nul_byte', `the file contains a NUL byte at byte offset ${offset + nul} (line ${line}); it is binary data, not CSV text`, [
+			{ row: line, byteOffset: offset + nul, message: 'NUL byte' }
+		]);
+	}
+	if (bad !== -1) {
+		const line = newlines + countNewlines(part, bad) + 1;
+		const hex = part[bad].toString(16).toUpperCase().padStart(2, '0');
+		throw new ImportError(
+			422,
+			'encoding',
+			`the file is not valid UTF-8: byte 0x${hex} at byte offset ${offset + bad} (line ${line}); save it as UTF-8 (CSV UTF-8) and upload again`,
+			[{ row: line, byteOffset: offset + bad, message: `invalid UTF-8 byte 0x${hex}` }]
+		);
+	}
+}
+
+/** Count separator characters outside double quotes. */
+function countOutsideQuotes(line: string, sep: string): number {
+	let n = 0;
+	let quoted = false;
+	for (let i = 0; i < line.length; i++) {
+		const ch = line[i];
+		if (ch === '"') quoted = !quoted;
+		else if (ch === sep && !quoted) n++;
+	}
+	return n;
+}
+
+/**
+ * Separator from the sample lines: the candidate that splits the lower half
+ * of the sample (where the data is) the same way on at least 80 % of lines.
+ * Tab and semicolon win over comma when consistent, because a decimal-comma
+ * file also has a steady comma count (common practice, no source).
+ */
+export function detectSeparator(lines: string[]): Separator {
+	const body = lines.filter((l) => l.trim() !== '');
+	const tail = body.slice(Math.floor(body.length / 2));
+	if (tail.length === 0) return ',';
+	const consistent = (sep: string): boolean => {
+		const freq = new Map<number, number>();
+		for (const l of tail) {
+			const c = countOutsideQuotes(l, sep);
+			freq.set(c, (freq.get(c) ?? 0) + 1);
+		}
+		let mode = 0;
+		let n = 0;
+		for (const [c, k] of freq) if (k > n) [mode, n] = [c, k];
+		return mode >= 1 && n >= 0.8 * tail.length;
+	};
+	if (consistent('\t')) return '\t';
+	if (consistent(';')) return ';';
+	if (consistent(',')) return ',';
+	// Fall back to whichever appears most.
+	const total = (sep: string) => tail.reduce((s, l) => s + countOutsideQuotes(l, sep), 0);
+	const cands: Separator[] = ['\t', ';', ','];
+	return cands.reduce((a, b) => (total(b) > total(a) ? b : a), ',');
+}
+
+/** Decimal comma when the separator is not a comma and number-like cells use "1,25". */
+export function detectDecimalComma(lines: string[], sep: Separator): boolean {
+	if (sep === ',') return false;
+	let comma = 0;
+	let point = 0;
+	for (const l of lines) {
+		for (const cell of l.split(sep)) {
+			const c = cell.replace(/^"|"$/g, '');
+			if (looksDecimalComma(c)) comma++;
+			else if (looksDecimalPoint(c)) point++;
+		}
+	}
+	return comma > point;
+}
+
+function mapParseError(err: unknown, limits: ImportLimits): unknown {
+	if (err instanceof ImportError) return err;
+	const e = err as { code?: string; lines?: number; message?: string };
+	if (e && typeof e.code === 'string' && e.code.startsWith('CSV_')) {
+		const line = typeof e.lines === 'number' ? e.lines : undefined;
+		if (e.code === 'CSV_MAX_RECORD_SIZE') {
+			return new ImportError(413, 'line_too_long', `line ${line ?? '?'} is longer than the limit of ${fmtCount(limits.maxLineLength)} characters`, [
+				{ row: line, message: 'line too long' }
+			]);
+		}
+		const what =
+			e.code === 'CSV_QUOTE_NOT_CLOSED'
+				? 'a quoted field is never closed'
+				: e.code === 'CSV_INVALID_CLOSING_QUOTE'
+					? 'a closing quote is followed by other characters'
+					: e.code === 'CSV_NON_TRIMABLE_CHAR_AFTER_CLOSING_QUOTE'
+						? 'a closing quote is followed by other characters'
+						: 'the text cannot be split into fields';
+		return new ImportError(422, 'csv_syntax', `CSV syntax error at line ${line ?? '?'}: ${what}`, [{ row: line, message: what }]);
+	}
+	return err;
+}
+
+/**
+ * Open a CSV stream: detect format and layout from the first rows, then hand
+ * back the data rows as an async iterable. Throws ImportError for files that
+ * cannot be read (encoding, NUL bytes, limits, syntax, no header).
+ */
+export async function openCsv(source: ByteSource, options: CsvOptions = {}): Promise<CsvReader> {
+	const limits = resolveLimits(options.limits);
+	const state: DecodeState = { bom: false };
+	const text = decodeUtf8(source, state);
+
+	// Gather the head: enough lines to detect format and layout.
+	const sampleRows = options.sampleRows ?? 60;
+	const headCap = Math.max(256 * 1024, limits.maxLineLength * 2);
+	let head = '';
+	let ended = false;
+	for (;;) {
+		const next = await text.next();
+		if (next.done) {
+			ended = true;
+			break;
+		}
+		head += next.value;
+		let nl = 0;
+		for (let i = head.indexOf('\n'); i !== -1 && nl <= sampleRows; i = head.indexOf('\n', i + 1)) nl++;
+		if (nl > sampleRows || head.length >= headCap) break;
+	}
+	if (head.trim() === '') {
+		throw new ImportError(400, 'empty_file', 'the file is empty', [{ message: 'no text found' }]);
+	}
+	const lines = head.split(/\r?\n/);
+	if (!ended) lines.pop(); // the last line may be cut short
+	if (lines.length === 0 || (lines.length === 1 && lines[0].length > limits.maxLineLength)) {
+		throw new ImportError(413, 'line_too_long', `line 1 is longer than the limit of ${fmtCount(limits.maxLineLength)} characters`, [
+			{ row: 1, message: 'line too long' }
+		]);
+	}
+	const separator = options.separator ?? detectSeparator(lines);
+	const decimalComma = options.decimalComma ?? detectDecimalComma(lines.slice(Math.floor(lines.length / 3)), separator);
+
+	const parser = parse({
+		delimiter: separator,
+		relax_column_count: true,
+		skip_empty_lines: true,
+		info: true,
+		max_record_size: limits.maxLineLength
+	});
+	async function* all(): AsyncGenerator<string> {
+		yield head;
+		if (!ended) yield* text;
+	}
+	const done = pipeline(Readable.from(all(), { objectMode: false }), parser);
+	done.catch(() => undefined); // surfaced through the iterator below
+	const it = (parser as AsyncIterable<{ record: string[]; info: { lines: number } }>)[Symbol.asyncIterator]();
+
+	const nextRecord = async (): Promise<DataRow | null> => {
+		let r: IteratorResult<{ record: string[]; info: { lines: number } }>;
+		try {
+			r = await it.next();
+		} catch (err) {
+			throw mapParseError(err, limits);
+		}
+		if (r.done) {
+			await done.catch((err) => {
+				throw mapParseError(err, limits);
+			});
+			return null;
+		}
+		const { record, info } = r.value;
+		if (record.length > limits.maxColumns) {
+			parser.destroy();
+			throw new ImportError(
+				413,
+				'too_many_columns',
+				`line ${info.lines} has ${fmtCount(record.length)} columns; the limit is ${fmtCount(limits.maxColumns)}`,
+				[{ row: info.lines, message: 'too many columns' }]
+			);
+		}
+		return { row: info.lines, cells: record };
+	};
+
+	const sample: DataRow[] = [];
+	while (sample.length < sampleRows) {
+		const r = await nextRecord();
+		if (!r) break;
+		sample.push(r);
+	}
+	let layout;
+	try {
+		layout = detectLayout(sample, decimalComma);
+	} catch (err) {
+		parser.destroy();
+		throw err;
+	}
+	const { dataIndex, ...tableHead } = layout;
+
+	async function* rows(): AsyncGenerator<DataRow> {
+		let count = 0;
+		const tooMany = (row: number) => {
+			parser.destroy();
+			return new ImportError(413, 'too_many_rows', `the file has more than ${fmtCount(limits.maxRows)} data rows (the limit), at line ${row}`, [
+				{ row, message: 'too many rows' }
+			]);
+		};
+		try {
+			for (let i = dataIndex; i < sample.length; i++) {
+				if (isBlank(sample[i].cells)) continue;
+				if (++count > limits.maxRows) throw tooMany(sample[i].row);
+				yield sample[i];
+			}
+			for (;;) {
+				const r = await nextRecord();
+				if (!r) break;
+				if (isBlank(r.cells)) continue;
+				if (++count > limits.maxRows) throw tooMany(r.row);
+				yield r;
+			}
+		} finally {
+			if (!parser.destroyed && !parser.readableEnded) parser.destroy();
+		}
+	}
+
+	return { ...tableHead, format: { separator, decimalComma, bom: state.bom }, rows: rows() };
+}
+
+function isBlank(cells: (string | number | null)[]): boolean {
+	for (const c of cells) if (c !== null && String(c).trim() !== '') return false;
+	return true;
+}
+
+/** Read a whole (small) CSV into memory: head plus all data rows. */
+export async function readCsv(source: ByteSource, options: CsvOptions = {}): Promise<Omit<CsvReader, 'rows'> & { rows: DataRow[] }> {
+	const reader = await openCsv(source, options);
+	const rows: DataRow[] = [];
+	for await (const r of reader.rows) rows.push(r);
+	return { ...reader, rows };
+}
