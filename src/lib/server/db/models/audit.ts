@@ -12,6 +12,8 @@ export class AuditEvent extends Model<InferAttributes<AuditEvent>, InferCreation
 	declare entityId: CreationOptional<string | null>;
 	declare details: CreationOptional<Record<string, unknown> | null>;
 	declare requestId: CreationOptional<string | null>;
+	/** Client address of the request (migration 2026-12-02T0100). */
+	declare ip: CreationOptional<string | null>;
 }
 
 export function defineAudit(sequelize: Sequelize) {
@@ -26,7 +28,8 @@ export function defineAudit(sequelize: Sequelize) {
 			entityType: { type: DataTypes.TEXT, allowNull: false },
 			entityId: { type: DataTypes.TEXT },
 			details: { type: DataTypes.JSONB },
-			requestId: { type: DataTypes.TEXT }
+			requestId: { type: DataTypes.TEXT },
+			ip: { type: DataTypes.TEXT }
 		},
 		{ modelName: 'auditEvent', tableName: 'audit_events', timestamps: false },
 		sequelize
