@@ -2,7 +2,7 @@
 // demo seed, the Auth.js Sequelize adapter on our tables, down to empty, up again.
 // Runs in its own scratch database so it never disturbs the shared test database.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Sequelize } from 'sequelize';
+import type { Model, ModelStatic, Sequelize } from 'sequelize';
 import { QueryTypes } from 'sequelize';
 import SequelizeAdapter, { models as adapterModels } from '@auth/sequelize-adapter';
 import { ensurePostgres, recreateDatabase, dropDatabase, databaseUrl } from '../../scripts/lib/postgres.mjs';
@@ -92,7 +92,7 @@ describe('migrations', () => {
 
 	it('match every model attribute to a column of its table', async () => {
 		const models = initModels(sequelize);
-		for (const model of Object.values(models)) {
+		for (const model of Object.values(models) as ModelStatic<Model>[]) {
 			const have = await columns(model.getTableName() as string);
 			for (const attr of Object.values(model.getAttributes())) {
 				expect(have, `${model.getTableName()}.${attr.field}`).toContain(attr.field);

@@ -5,8 +5,8 @@ import { databaseUrlFromEnv, sequelizeOptions } from './config';
 import { initModels, type Models } from './models';
 import './pg-types';
 
-export { initModels, authAdapterModels } from './models';
-export type { Models } from './models';
+// Model classes and their JSON column types, initModels, authAdapterModels.
+export * from './models';
 
 let instance: Sequelize | null = null;
 

@@ -15,7 +15,7 @@ export function bindModel<M extends ModelClass>(
 	sequelize: Sequelize
 ): M {
 	const Bound = class extends (Base as unknown as typeof Model) {} as unknown as M;
-	(Bound as unknown as typeof Model).init(attributes as ModelAttributes, {
+	(Bound as unknown as ModelStatic<Model>).init(attributes as ModelAttributes, {
 		underscored: true,
 		...(options as Omit<InitOptions, 'sequelize'>),
 		sequelize
