@@ -24,7 +24,7 @@ if (!existsSync('/usr/bin/chromium')) {
 }
 
 step('Starting PostgreSQL on 127.0.0.1');
-const wasRunning = await pg.isRunning().catch(() => false);
+const wasRunning = (() => { try { return Boolean(pg.isRunning()); } catch { return false; } })();
 await pg.ensurePostgres();
 const testDb = 'spanline_test';
 await pg.recreateDatabase(testDb);
