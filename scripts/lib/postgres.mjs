@@ -9,7 +9,8 @@
 // scram-sha-256 password from .env.
 import { spawnSync } from 'node:child_process';
 import { chownSync, existsSync, mkdirSync, readFileSync, readdirSync, writeFileSync, appendFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { createHash } from 'node:crypto';
+import { dirname, join } from 'node:path';
 import pg from 'pg';
 import { ensureEnv, projectRoot } from './env.mjs';
 
@@ -19,7 +20,13 @@ export const SUPERUSER = 'postgres';
 
 export const dataRoot = join(projectRoot, '.data', 'postgres');
 export const dataDir = join(dataRoot, 'data');
-export const socketDir = join(dataRoot, 'socket');
+// Unix socket paths are limited to about 107 bytes; a deep checkout falls back to a
+// private folder under /tmp named after the project path.
+const socketInTree = join(dataRoot, 'socket');
+export const socketDir =
+	Buffer.byteLength(join(socketInTree, '.s.PGSQL.65535')) <= 100
+		? socketInTree
+		: join('/tmp', `spanline-pg-${createHash('sha256').update(projectRoot).digest('hex').slice(0, 12)}`);
 export const logFile = join(dataRoot, 'postgres.log');
 
 const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
@@ -74,7 +81,7 @@ function installBinaries(log) {
 				'Install them once (Debian/Ubuntu: `sudo apt-get install -y postgresql`) or set PG_BIN to the folder holding pg_ctl.'
 		);
 	}
-	if (spawnSync('which', ['apt-get']).status !== 0) {
+	if (!existsSync('/usr/bin/apt-get')) {
 		throw new Error('PostgreSQL server binaries are missing and apt-get is not available; install PostgreSQL 15+ and set PG_BIN.');
 	}
 	// Debian's package would otherwise create and start its own "main" cluster on 5432; we only want the binaries.
@@ -85,7 +92,9 @@ function installBinaries(log) {
 		writeFileSync(ccFile, '# written by Spanline scripts/lib/postgres.mjs: binaries only, no default cluster\ncreate_main_cluster = false\n');
 	}
 	const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
-	for (const args of [['update'], ['install', '-y', '--no-install-recommends', 'postgresql']]) {
+	// confold keeps the createcluster.conf written above when the package brings its own.
+	const install = ['install', '-y', '--no-install-recommends', '-o', 'Dpkg::Options::=--force-confdef', '-o', 'Dpkg::Options::=--force-confold', 'postgresql'];
+	for (const args of [['update'], install]) {
 		log(`PostgreSQL binaries missing: running apt-get ${args.join(' ')} …`);
 		const r = spawnSync('apt-get', args, { stdio: ['ignore', 'inherit', 'inherit'], env });
 		if (r.status !== 0) {
@@ -136,7 +145,24 @@ function ownerIds() {
 	return { uid, gid };
 }
 
-function ensureDirs() {
+// The cluster owner must be able to reach .data/postgres. A checkout inside a
+// private folder (e.g. /root) would stop it: grant traverse-only permission (o+x,
+// no listing) on the ancestors that lack it, and say so.
+function ensureTraversable(log) {
+	if (!isRoot) return;
+	const blocked = [];
+	for (let dir = dirname(dataRoot); ; dir = dirname(dir)) {
+		if (spawnSync('runuser', ['-u', SUPERUSER, '--', 'test', '-x', dir]).status !== 0) blocked.push(dir);
+		if (dir === dirname(dir)) break;
+	}
+	for (const dir of blocked.reverse()) {
+		log(`granting traverse permission (chmod o+x) on ${dir} so the ${SUPERUSER} user can reach the cluster`);
+		const r = spawnSync('chmod', ['o+x', dir]);
+		if (r.status !== 0) throw new Error(`the ${SUPERUSER} user cannot reach ${dataRoot} and chmod o+x ${dir} failed`);
+	}
+}
+
+function ensureDirs(log) {
 	mkdirSync(join(projectRoot, '.data'), { recursive: true, mode: 0o755 });
 	for (const [dir, mode] of [
 		[dataRoot, 0o755],
@@ -233,7 +259,8 @@ export async function ensurePostgres({ log = console.log } = {}) {
 	ensureEnv();
 	const port = pgPort();
 	binDir(log);
-	ensureDirs();
+	ensureDirs(log);
+	ensureTraversable(log);
 	if (!existsSync(join(dataDir, 'PG_VERSION'))) initCluster(log);
 	if (isRunning()) {
 		log(`PostgreSQL already running on ${HOST}:${port} (${dataDir})`);
