@@ -33,6 +33,7 @@ const port = Number(process.env.SPANLINE_TEST_PORT ?? 3107);
 const origin = `http://127.0.0.1:${port}`;
 const smtpPort = Number(process.env.SPANLINE_TEST_SMTP_PORT ?? 2526);
 const mailHttpPort = Number(process.env.SPANLINE_TEST_MAIL_HTTP_PORT ?? 2581);
+const s3Port = Number(process.env.SPANLINE_TEST_S3_PORT ?? 4579);
 const env = {
 	...process.env,
 	DATABASE_URL: pg.databaseUrl(testDb),
@@ -43,7 +44,13 @@ const env = {
 	PORT: String(port),
 	ORIGIN: origin,
 	BODY_SIZE_LIMIT: 'Infinity',
-	SPANLINE_TEST_URL: origin
+	SPANLINE_TEST_URL: origin,
+	// The S3-compatible fake; the app itself stores raw files in PostgreSQL
+	// unless SPANLINE_STORAGE=s3. Tests of the S3 backend use these.
+	SPANLINE_TEST_S3_ENDPOINT: `http://127.0.0.1:${s3Port}`,
+	S3_FAKE_PORT: String(s3Port),
+	S3_FAKE_DIR: join(resultsDir, 's3'),
+	S3_BUCKET: 'spanline-raw'
 };
 
 step(`Migrating and seeding the test database '${testDb}'`);
@@ -56,7 +63,10 @@ const children = [];
 let exitCode = 1;
 let summary = "Tests: 0 passed, 1 failed";
 try {
-	step('Starting the mail fake and the built server');
+	step('Starting the mail fake, the S3 fake and the built server');
+	children.push(
+		await startChild('s3 fake', 'node', ['scripts/s3-fake.mjs'], { env, ready: /s3 fake ready/, logFile: join(resultsDir, 's3-fake.log') })
+	);
 	children.push(
 		await startChild('mail fake', 'node', ['scripts/mail-fake.mjs'], {
 			env,
