@@ -9,34 +9,9 @@ import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import * as XLSX from '@e965/xlsx';
+import { FLIGHT, POLAR, TARE, cd, cl, cm, kcasAt, mulberry32 } from '../fixtures/scenario';
 
 const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', 'fixtures');
-
-/** Constants shared with tests/unit/imports/fixture-constants.ts (keep in step). */
-export const POLAR = {
-	/** CL = CL_ALPHA·(α − α0) − STALL_K·max(0, α − STALL_START)², α in degrees. */
-	CL_ALPHA: 0.085,
-	ALPHA0: -2.0,
-	STALL_START: 9,
-	STALL_K: 0.006,
-	/** CD = CD0 + K·CL². */
-	CD0: 0.011,
-	K: 0.052,
-	/** Cm = CM0 + CM_CL·CL (about the moment reference). */
-	CM0: -0.02,
-	CM_CL: -0.01,
-	Q: 600, // Pa
-	S: 0.18, // m²
-	C: 0.15, // m, reference chord for the pitching moment
-	T_C: 20.0 // °C
-};
-
-export function cl(alphaDeg: number): number {
-	const stall = Math.max(0, alphaDeg - POLAR.STALL_START);
-	return POLAR.CL_ALPHA * (alphaDeg - POLAR.ALPHA0) - POLAR.STALL_K * stall * stall;
-}
-export const cd = (CL: number) => POLAR.CD0 + POLAR.K * CL * CL;
-export const cm = (CL: number) => POLAR.CM0 + POLAR.CM_CL * CL;
 
 const LBF = 0.45359237 * 9.80665; // N per lbf (exact, NIST SP 811 App. B)
 const PSF = LBF / (0.3048 * 0.3048); // Pa per lbf/ft²
@@ -95,7 +70,6 @@ function cleanPolarRows() {
 }
 
 // 3. Wind-off weight tare: NF = −W·cos α, AF = W·sin α, PM = W·X·cos α.
-export const TARE = { W: 11.5, X: 0.012 }; // N, m
 {
 	const lines = ['Alpha [deg],NF [N],AF [N],PM [N m],q [Pa]'];
 	for (let a = -6; a <= 14; a += 2) {
@@ -119,53 +93,6 @@ export const TARE = { W: 11.5, X: 0.012 }; // N, m
 }
 
 // 5. Flight time history with five steady level segments.
-export const FLIGHT = {
-	HZ: 10,
-	DURATION_S: 300,
-	S: 16.2, // m², wing area
-	MASS0_LB: 2315, // lb at t = 0
-	FUEL_LB_PER_S: 0.01,
-	CD0: 0.024,
-	K: 0.04, // CD = CD0 + K·CL²
-	CL_ALPHA: 0.09, // per degree
-	ALPHA0: -1.5, // deg
-	HP_FT: 5000,
-	OAT_C: 5.1, // ISA at 5000 ft (15 − 1.98·5)
-	RHO0: 1.225, // kg/m³, sea-level ISA
-	/** Segment speeds (KCAS) and windows [start, end) in s. */
-	SEGMENTS: [
-		{ kcas: 70, t0: 15, t1: 45 },
-		{ kcas: 85, t0: 75, t1: 105 },
-		{ kcas: 100, t0: 135, t1: 165 },
-		{ kcas: 115, t0: 195, t1: 225 },
-		{ kcas: 130, t0: 255, t1: 285 }
-	]
-};
-
-function mulberry32(seed: number) {
-	return () => {
-		seed |= 0;
-		seed = (seed + 0x6d2b79f5) | 0;
-		let t = Math.imul(seed ^ (seed >>> 15), 1 | seed);
-		t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
-
-/** Speed schedule: constant in segments, cosine ramps between them. */
-export function kcasAt(t: number): number {
-	const s = FLIGHT.SEGMENTS;
-	if (t < s[0].t1) return s[0].kcas;
-	for (let i = 1; i < s.length; i++) {
-		if (t < s[i].t0) {
-			const u = (t - s[i - 1].t1) / (s[i].t0 - s[i - 1].t1);
-			return s[i - 1].kcas + (s[i].kcas - s[i - 1].kcas) * (1 - Math.cos(Math.PI * u)) / 2;
-		}
-		if (t < s[i].t1) return s[i].kcas;
-	}
-	return s[s.length - 1].kcas;
-}
-
 {
 	const rnd = mulberry32(20250304);
 	const noise = (a: number) => (rnd() + rnd() + rnd() - 1.5) * 2 * a; // ~triangular-ish, bounded ±3a
