@@ -1,10 +1,36 @@
-import { redirect, type Handle, type HandleServerError } from '@sveltejs/kit';
+import { redirect, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
+import { building } from '$app/environment';
 import { randomUUID } from 'node:crypto';
 import { apiError } from '$lib/server/http';
+import { handle as authHandle } from './auth';
+import * as tokens from '$lib/server/auth/tokens';
+import * as signInRules from '$lib/server/auth/sign-in';
+import * as links from '$lib/server/auth/links';
+import * as mail from '$lib/server/mail';
 
 /** Paths anyone may reach without signing in. */
-const PUBLIC_PATHS = [/^\/signin(\/|$)/, /^\/auth\//, /^\/api\/v1\/health$/, /^\/_app\//, /^\/favicon/];
+const PUBLIC_PATHS = [
+	/^\/signin(\/|$)/,
+	/^\/signout$/,
+	/^\/invite\//,
+	/^\/auth\//,
+	/^\/api\/v1\/health$/,
+	/^\/_app\//,
+	/^\/favicon/
+];
+
+/** How often queued mail is retried (the retry pauses themselves grow per message). */
+const MAIL_RETRY_INTERVAL_MS = 15_000;
+
+export const init: ServerInit = async () => {
+	if (building) return;
+	// A small retry loop for mail that could not be delivered at once.
+	const timer = setInterval(() => {
+		mail.deliverDue().catch((err) => console.error('mail retry:', err instanceof Error ? err.message : err));
+	}, MAIL_RETRY_INTERVAL_MS);
+	timer.unref();
+};
 
 const requestId: Handle = async ({ event, resolve }) => {
 	event.locals.requestId = event.request.headers.get('x-request-id')?.slice(0, 64) || randomUUID();
@@ -12,6 +38,54 @@ const requestId: Handle = async ({ event, resolve }) => {
 	const response = await resolve(event);
 	response.headers.set('x-request-id', event.locals.requestId);
 	return response;
+};
+
+/**
+ * Before Auth.js consumes a sign-in link, tell an expired link from an
+ * unknown or used one (Auth.js reports both as the same error).
+ */
+const linkCheck: Handle = async ({ event, resolve }) => {
+	if (event.request.method === 'GET' && event.url.pathname === '/auth/callback/nodemailer') {
+		const problem = await links.linkProblem(event.url.searchParams.get('token'), event.url.searchParams.get('email'));
+		if (problem) redirect(303, `/signin?refused=${problem}`);
+	}
+	return resolve(event);
+};
+
+const SESSION_COOKIES = ['authjs.session-token', '__Secure-authjs.session-token'];
+
+/** Who is asking: an API token, else the Auth.js session, re-checked against the database. */
+const identify: Handle = async ({ event, resolve }) => {
+	const header = event.request.headers.get('authorization');
+	if (header) {
+		const m = /^Bearer\s+(\S+)$/i.exec(header.trim());
+		const user = m ? await tokens.userForToken(m[1]) : null;
+		if (!user) {
+			// A bad token is never silently treated as anonymous browsing.
+			return apiError(401, 'invalid_token', 'The API token is unknown, revoked or expired, or its owner is deactivated.');
+		}
+		event.locals.user = user;
+		return resolve(event);
+	}
+	const session = await event.locals.auth();
+	const id = session?.user?.id;
+	if (id) {
+		const user = await signInRules.activeUser(id);
+		if (user) {
+			event.locals.user = user;
+		} else {
+			// Deactivated (or removed) since signing in: the session ends now.
+			for (const name of SESSION_COOKIES) {
+				for (const suffix of ['', '.0', '.1', '.2']) {
+					if (event.cookies.get(name + suffix)) event.cookies.delete(name + suffix, { path: '/' });
+				}
+			}
+			if (!event.url.pathname.startsWith('/api/') && !event.url.pathname.startsWith('/signin')) {
+				redirect(303, '/signin?refused=deactivated');
+			}
+		}
+	}
+	return resolve(event);
 };
 
 /** First line of defence; every load, action and endpoint checks its capability again. */
@@ -26,7 +100,7 @@ const gate: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle: Handle = sequence(requestId, gate);
+export const handle: Handle = sequence(requestId, linkCheck, authHandle, identify, gate);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status !== 404) console.error(`[${event.locals.requestId}] ${status} ${event.url.pathname}:`, error);

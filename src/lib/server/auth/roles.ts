@@ -22,7 +22,9 @@ export const CAPABILITIES = {
 	/** Configurations, predictions, tolerances, sign-off. */
 	editModels: ['admin', 'aerodynamicist'],
 	signOff: ['admin', 'aerodynamicist'],
-	/** People, roles, facilities, tokens for others. */
+	/** Own account: profile, unit preference, own API tokens. */
+	ownAccount: ['admin', 'test_engineer', 'aerodynamicist', 'program_manager'],
+	/** People, roles, facilities, tokens for others, the audit trail. */
 	administer: ['admin']
 } as const satisfies Record<string, readonly Role[]>;
 

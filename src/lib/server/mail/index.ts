@@ -1,0 +1,142 @@
+/**
+ * Outgoing e-mail. `sendMail` first writes the message to mail_outbox (in the
+ * caller's transaction when one is given, so a rolled-back invitation sends
+ * nothing), then tries to deliver it at once over SMTP. A failed delivery
+ * stays queued and `deliverDue` (run on a timer by hooks.server.ts) retries
+ * it with growing pauses, up to MAX_ATTEMPTS.
+ */
+import { Op, type Transaction } from 'sequelize';
+import { getModels } from '$lib/server/db';
+import { mailFrom, transport } from './transport';
+
+export * as messages from './messages';
+export { smtpSettings, mailFrom as mailFromAddress } from './transport';
+
+export type MailKind =
+	| 'invitation'
+	| 'sign_in_link'
+	| 'run_reduced'
+	| 'tolerance_exceeded'
+	| 'campaign_digest'
+	| 'other';
+
+export interface OutgoingMail {
+	to: string;
+	subject: string;
+	text: string;
+	html?: string;
+	kind: MailKind;
+}
+
+export const MAX_ATTEMPTS = 5;
+/** Pause before attempt n+1, in seconds (common practice, no source). */
+const BACKOFF_S = [15, 60, 300, 1800];
+/** These kinds carry a one-time link; once delivered, their body is removed from the outbox. */
+const SECRET_BEARING: MailKind[] = ['invitation', 'sign_in_link'];
+
+export interface SendResult {
+	id: number;
+	status: 'sent' | 'queued' | 'failed';
+	error?: string;
+}
+
+export async function sendMail(mail: OutgoingMail, options: { transaction?: Transaction } = {}): Promise<SendResult> {
+	const { MailOutbox } = getModels();
+	const row = await MailOutbox.create(
+		{ to: mail.to, subject: mail.subject, text: mail.text, html: mail.html ?? null, kind: mail.kind },
+		{ transaction: options.transaction }
+	);
+	const id = Number(row.id);
+	if (options.transaction) {
+		// Deliver only once the row (and the change it belongs to) is committed.
+		return new Promise<SendResult>((resolve) => {
+			options.transaction!.afterCommit(() => {
+				deliver(id).then(resolve, (err) => resolve({ id, status: 'queued', error: String(err) }));
+			});
+		});
+	}
+	return deliver(id);
+}
+
+/** Try one queued message now. */
+export async function deliver(id: number): Promise<SendResult> {
+	const { MailOutbox } = getModels();
+	const row = await MailOutbox.findByPk(id);
+	if (!row) throw new Error(`mail ${id} not found`);
+	if (row.status === 'sent') return { id, status: 'sent' };
+	const attempts = row.attempts + 1;
+	try {
+		const info = await transport().sendMail({
+			from: mailFrom(),
+			to: row.to,
+			subject: row.subject,
+			text: row.text ?? '',
+			...(row.html ? { html: row.html } : {})
+		});
+		const refused = [...(info.rejected ?? []), ...((info as { pending?: unknown[] }).pending ?? [])];
+		if (refused.length) throw new Error(`refused by the relay: ${refused.map(String).join(', ')}`);
+		const redact = SECRET_BEARING.includes(row.kind as MailKind);
+		await row.update({
+			status: 'sent',
+			attempts,
+			sentAt: new Date(),
+			lastError: null,
+			...(redact ? { text: '(delivered; body removed because it carried a one-time link)', html: null } : {})
+		});
+		return { id, status: 'sent' };
+	} catch (err) {
+		const message = err instanceof Error ? err.message : String(err);
+		const failed = attempts >= MAX_ATTEMPTS;
+		const pause = BACKOFF_S[Math.min(attempts - 1, BACKOFF_S.length - 1)];
+		await row.update({
+			status: failed ? 'failed' : 'queued',
+			attempts,
+			lastError: message.slice(0, 2000),
+			nextAttemptAt: new Date(Date.now() + pause * 1000)
+		});
+		// The address is logged, never the body (it may carry a one-time link).
+		console.error(`mail ${id} (${row.kind}) to ${row.to}: attempt ${attempts} failed: ${message}`);
+		return { id, status: failed ? 'failed' : 'queued', error: message };
+	}
+}
+
+/** Retry every queued message that is due; returns how many were tried. */
+export async function deliverDue(limit = 20): Promise<number> {
+	const { MailOutbox } = getModels();
+	const due = await MailOutbox.findAll({
+		where: { status: 'queued', nextAttemptAt: { [Op.lte]: new Date() } },
+		order: [['nextAttemptAt', 'ASC']],
+		limit,
+		attributes: ['id']
+	});
+	for (const row of due) await deliver(Number(row.id));
+	return due.length;
+}
+
+export interface OutboxEntryDto {
+	id: number;
+	to: string;
+	subject: string;
+	kind: string;
+	status: string;
+	attempts: number;
+	lastError: string | null;
+	createdAt: string;
+	sentAt: string | null;
+}
+
+export async function recentOutbox(limit = 50): Promise<OutboxEntryDto[]> {
+	const { MailOutbox } = getModels();
+	const rows = await MailOutbox.findAll({ order: [['id', 'DESC']], limit });
+	return rows.map((r) => ({
+		id: Number(r.id),
+		to: r.to,
+		subject: r.subject,
+		kind: r.kind,
+		status: r.status,
+		attempts: r.attempts,
+		lastError: r.lastError,
+		createdAt: r.createdAt.toISOString(),
+		sentAt: r.sentAt ? r.sentAt.toISOString() : null
+	}));
+}
