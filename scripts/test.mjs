@@ -5,8 +5,9 @@
 import { existsSync, readFileSync, rmSync, mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { spawnSync } from 'node:child_process';
-import { ensureDependencies, step, run, build, startChild, waitForHttp, mailEnv, root } from './lib/setup.mjs';
+import { ensureDependencies, step, run, build, startChild, waitForHttp, mailEnv, root, acquireTestLock } from './lib/setup.mjs';
 
+await acquireTestLock(join(root, '.data', 'npm-test.lock'));
 ensureDependencies();
 const { ensureEnv } = await import('./lib/env.mjs');
 const pg = await import('./lib/postgres.mjs');
@@ -24,7 +25,6 @@ if (!existsSync('/usr/bin/chromium')) {
 }
 
 step('Starting PostgreSQL on 127.0.0.1');
-const wasRunning = (() => { try { return Boolean(pg.isRunning()); } catch { return false; } })();
 await pg.ensurePostgres();
 const testDb = 'spanline_test';
 await pg.recreateDatabase(testDb);
@@ -98,7 +98,6 @@ try {
 	}
 } finally {
 	for (const child of children) child.kill('SIGTERM');
-	if (!wasRunning && !process.env.SPANLINE_KEEP_DB) await pg.stopPostgres().catch(() => {});
 }
 console.log(summary);
 process.exit(exitCode);

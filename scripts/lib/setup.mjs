@@ -103,3 +103,52 @@ export function mailEnv(smtpPort, httpPort) {
 		MAIL_FAKE_HTTP_PORT: String(httpPort)
 	};
 }
+
+/**
+ * One `npm test` at a time per checkout: runs share the build folder, the test
+ * database and the ports. Waits for a running one; a lock whose process is
+ * gone is taken over.
+ */
+export async function acquireTestLock(file, { timeoutMs = 30 * 60_000 } = {}) {
+	const { openSync, writeSync, closeSync, readFileSync: read, unlinkSync } = await import('node:fs');
+	mkdirSync(dirname(file), { recursive: true });
+	const until = Date.now() + timeoutMs;
+	let told = false;
+	for (;;) {
+		try {
+			const fd = openSync(file, 'wx');
+			writeSync(fd, String(process.pid));
+			closeSync(fd);
+			const release = () => {
+				try {
+					if (read(file, 'utf8') === String(process.pid)) unlinkSync(file);
+				} catch {}
+			};
+			process.on('exit', release);
+			return release;
+		} catch (e) {
+			if (e.code !== 'EEXIST') throw e;
+			let holder = NaN;
+			try {
+				holder = Number(read(file, 'utf8'));
+			} catch {}
+			let alive = false;
+			try {
+				process.kill(holder, 0);
+				alive = true;
+			} catch {}
+			if (!alive) {
+				try {
+					unlinkSync(file);
+				} catch {}
+				continue;
+			}
+			if (!told) {
+				console.log(`waiting for another npm test (pid ${holder}) to finish…`);
+				told = true;
+			}
+			if (Date.now() > until) throw new Error(`another npm test (pid ${holder}) holds ${file}`);
+			await new Promise((r) => setTimeout(r, 1000));
+		}
+	}
+}
