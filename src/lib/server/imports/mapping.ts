@@ -245,7 +245,7 @@ export function validateMapping(mapping: ColumnMapping, kind: RunKind): MappingC
 		if (prev !== undefined) messages.push(`columns '${prev}' and '${c.header}' are both mapped to ${def.label}`);
 		seen.set(c.field, c.header);
 		if (c.unit === null || !isUnit(c.unit)) messages.push(`column '${c.header}' (${def.label}): choose a unit`);
-		else if (!quantityMatches(c.unit, def.quantity)) messages.push(`column '${c.header}' (${def.label}): unit '${c.unit}' is not a ${def.quantity} unit`);
+		else if (!quantityMatches(c.unit, def.quantity)) messages.push(`column '${c.header}' (${def.label}): unit '${c.unit}' is not a unit of ${def.quantity}`);
 		have.add(c.field);
 	}
 	const need = (ok: boolean, what: string) => {
