@@ -37,3 +37,8 @@ export function isRole(value: unknown): value is Role {
 export function can(role: Role | null | undefined, capability: Capability): boolean {
 	return role != null && (CAPABILITIES[capability] as readonly Role[]).includes(role);
 }
+
+/** Every capability a role has, e.g. for the navigation frame (which cannot import this server module). */
+export function capabilitiesOf(role: Role | null | undefined): Capability[] {
+	return (Object.keys(CAPABILITIES) as Capability[]).filter((c) => can(role, c));
+}

@@ -1,7 +1,8 @@
 /**
- * Outgoing e-mail. `sendMail` first writes the message to mail_outbox (in the
- * caller's transaction when one is given, so a rolled-back invitation sends
- * nothing), then tries to deliver it at once over SMTP. A failed delivery
+ * Outgoing e-mail. `sendMail` first writes the message to mail_outbox, then
+ * tries to deliver it at once over SMTP; `queueMail` does the same inside the
+ * caller's transaction, delivering after commit (a rolled-back invitation
+ * sends nothing). A failed delivery
  * stays queued and `deliverDue` (run on a timer by hooks.server.ts) retries
  * it with growing pauses, up to MAX_ATTEMPTS.
  */
@@ -40,22 +41,44 @@ export interface SendResult {
 	error?: string;
 }
 
-export async function sendMail(mail: OutgoingMail, options: { transaction?: Transaction } = {}): Promise<SendResult> {
+/** Queue and deliver at once (outside any transaction). Never throws for SMTP trouble: the result says. */
+export async function sendMail(mail: OutgoingMail): Promise<SendResult> {
+	const { id } = await writeOutbox(mail);
+	return deliverSafely(id);
+}
+
+/**
+ * Queue inside the caller's transaction; delivery starts once it commits
+ * (and never, if it rolls back). Await the call inside the transaction; the
+ * returned `delivery` settles after the commit and never rejects.
+ */
+export async function queueMail(
+	mail: OutgoingMail,
+	options: { transaction: Transaction }
+): Promise<{ id: number; delivery: Promise<SendResult> }> {
+	const { id } = await writeOutbox(mail, options.transaction);
+	const delivery = new Promise<SendResult>((resolve) => {
+		options.transaction.afterCommit(() => {
+			deliverSafely(id).then(resolve);
+		});
+	});
+	return { id, delivery };
+}
+
+async function writeOutbox(mail: OutgoingMail, transaction?: Transaction): Promise<{ id: number }> {
 	const { MailOutbox } = getModels();
 	const row = await MailOutbox.create(
 		{ to: mail.to, subject: mail.subject, text: mail.text, html: mail.html ?? null, kind: mail.kind },
-		{ transaction: options.transaction }
+		{ transaction }
 	);
-	const id = Number(row.id);
-	if (options.transaction) {
-		// Deliver only once the row (and the change it belongs to) is committed.
-		return new Promise<SendResult>((resolve) => {
-			options.transaction!.afterCommit(() => {
-				deliver(id).then(resolve, (err) => resolve({ id, status: 'queued', error: String(err) }));
-			});
-		});
-	}
-	return deliver(id);
+	return { id: Number(row.id) };
+}
+
+function deliverSafely(id: number): Promise<SendResult> {
+	return deliver(id).catch((err) => {
+		console.error(`mail ${id}: could not record the delivery attempt: ${err instanceof Error ? err.message : err}`);
+		return { id, status: 'queued' as const, error: String(err) };
+	});
 }
 
 /** Try one queued message now. */

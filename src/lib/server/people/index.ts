@@ -134,7 +134,7 @@ export async function invite(
 			url: `${ctx.origin}/invite/${token}`,
 			expires
 		});
-		sent = mail.sendMail({ to: email, kind: 'invitation', ...message }, { transaction });
+		sent = (await mail.queueMail({ to: email, kind: 'invitation', ...message }, { transaction })).delivery;
 		return toPersonDto(user);
 	});
 	return { person, mail: sent };
