@@ -327,52 +327,24 @@ export async function openCsv(source: ByteSource, options: CsvOptions = {}): Pro
 	}
 	const done = pipeline(Readable.from(all(), { objectMode: false }), parser);
 	done.catch(() => undefined); // surfaced through the iterator below
-	// Records are drained synchronously with read() in batches: one await per
-	// batch instead of one per record.
-	const queue: string[][] = [];
-	let qi = 0;
-	let finished = false;
-	let failure: unknown = null;
-	parser.on('end', () => (finished = true));
-	parser.on('close', () => (finished = true));
-	parser.on('error', (err) => (failure = err));
-	const refill = async (): Promise<void> => {
-		queue.length = 0;
-		qi = 0;
-		for (;;) {
-			let rec: string[] | null;
-			while ((rec = parser.read() as string[] | null) !== null) queue.push(rec);
-			if (queue.length > 0 || finished || failure || parser.destroyed) return;
-			await new Promise<void>((resolve) => {
-				const wake = () => {
-					parser.off('readable', wake);
-					parser.off('end', wake);
-					parser.off('error', wake);
-					parser.off('close', wake);
-					resolve();
-				};
-				parser.on('readable', wake);
-				parser.on('end', wake);
-				parser.on('error', wake);
-				parser.on('close', wake);
-			});
-		}
-	};
+	const it = (parser as AsyncIterable<string[]>)[Symbol.asyncIterator]();
 	let line = 0;
 
 	const nextRecord = async (): Promise<DataRow | null> => {
 		for (;;) {
-			if (qi >= queue.length) {
-				await refill();
-				if (failure) throw mapParseError(failure, limits);
-				if (queue.length === 0) {
-					await done.catch((err) => {
-						throw mapParseError(err, limits);
-					});
-					return null;
-				}
+			let r: IteratorResult<string[]>;
+			try {
+				r = await it.next();
+			} catch (err) {
+				throw mapParseError(err, limits);
 			}
-			const record = queue[qi++];
+			if (r.done) {
+				await done.catch((err) => {
+					throw mapParseError(err, limits);
+				});
+				return null;
+			}
+			const record = r.value;
 			const start = ++line;
 			if (state.quotes) {
 				for (const cell of record) for (let i = cell.indexOf('\n'); i !== -1; i = cell.indexOf('\n', i + 1)) line++;
