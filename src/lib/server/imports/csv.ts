@@ -40,6 +40,8 @@ export interface CsvReader extends TableHead {
 	format: CsvFormat;
 	/** The data rows, streamed; iterate once. `row` is the 1-based line number. */
 	rows: AsyncIterable<DataRow>;
+	/** Stop reading (when the rows are not wanted after all). */
+	close(): void;
 }
 
 export type ByteSource = AsyncIterable<Uint8Array | string> | Iterable<Uint8Array | string>;
@@ -327,24 +329,52 @@ export async function openCsv(source: ByteSource, options: CsvOptions = {}): Pro
 	}
 	const done = pipeline(Readable.from(all(), { objectMode: false }), parser);
 	done.catch(() => undefined); // surfaced through the iterator below
-	const it = (parser as AsyncIterable<string[]>)[Symbol.asyncIterator]();
+	// Records are drained synchronously with read() in batches: one await per
+	// batch instead of one per record.
+	const queue: string[][] = [];
+	let qi = 0;
+	let finished = false;
+	let failure: unknown = null;
+	parser.on('end', () => (finished = true));
+	parser.on('close', () => (finished = true));
+	parser.on('error', (err) => (failure = err));
+	const refill = async (): Promise<void> => {
+		queue.length = 0;
+		qi = 0;
+		for (;;) {
+			let rec: string[] | null;
+			while ((rec = parser.read() as string[] | null) !== null) queue.push(rec);
+			if (queue.length > 0 || finished || failure || parser.destroyed) return;
+			await new Promise<void>((resolve) => {
+				const wake = () => {
+					parser.off('readable', wake);
+					parser.off('end', wake);
+					parser.off('error', wake);
+					parser.off('close', wake);
+					resolve();
+				};
+				parser.on('readable', wake);
+				parser.on('end', wake);
+				parser.on('error', wake);
+				parser.on('close', wake);
+			});
+		}
+	};
 	let line = 0;
 
 	const nextRecord = async (): Promise<DataRow | null> => {
 		for (;;) {
-			let r: IteratorResult<string[]>;
-			try {
-				r = await it.next();
-			} catch (err) {
-				throw mapParseError(err, limits);
+			if (qi >= queue.length) {
+				await refill();
+				if (failure) throw mapParseError(failure, limits);
+				if (queue.length === 0) {
+					await done.catch((err) => {
+						throw mapParseError(err, limits);
+					});
+					return null;
+				}
 			}
-			if (r.done) {
-				await done.catch((err) => {
-					throw mapParseError(err, limits);
-				});
-				return null;
-			}
-			const record = r.value;
+			const record = queue[qi++];
 			const start = ++line;
 			if (state.quotes) {
 				for (const cell of record) for (let i = cell.indexOf('\n'); i !== -1; i = cell.indexOf('\n', i + 1)) line++;
@@ -404,7 +434,14 @@ export async function openCsv(source: ByteSource, options: CsvOptions = {}): Pro
 		}
 	}
 
-	return { ...tableHead, format: { separator, decimalComma, bom: state.bom }, rows: rows() };
+	return {
+		...tableHead,
+		format: { separator, decimalComma, bom: state.bom },
+		rows: rows(),
+		close: () => {
+			if (!parser.destroyed) parser.destroy();
+		}
+	};
 }
 
 function isBlank(cells: (string | number | null)[]): boolean {
@@ -413,8 +450,8 @@ function isBlank(cells: (string | number | null)[]): boolean {
 }
 
 /** Read a whole (small) CSV into memory: head plus all data rows. */
-export async function readCsv(source: ByteSource, options: CsvOptions = {}): Promise<Omit<CsvReader, 'rows'> & { rows: DataRow[] }> {
-	const reader = await openCsv(source, options);
+export async function readCsv(source: ByteSource, options: CsvOptions = {}): Promise<Omit<CsvReader, 'rows' | 'close'> & { rows: DataRow[] }> {
+	const { close: _close, ...reader } = await openCsv(source, options);
 	const rows: DataRow[] = [];
 	for await (const r of reader.rows) rows.push(r);
 	return { ...reader, rows };

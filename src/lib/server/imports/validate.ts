@@ -314,18 +314,12 @@ export async function readRunFile(input: ReadRunFileInput): Promise<ReadRunFileR
 	const list = new ProblemList(limits.maxProblems, input.name);
 	const mapping = input.mapping ?? proposeMapping(reader.headers, reader.unitCells, input.kind);
 	if (mappingProblems(list, mapping, input.kind, reader.headers, reader.headerRow)) {
-		await drain(reader.rows);
+		reader.close();
 		return { ok: false, problems: list.items, moreProblems: list.more, summary: list.summary(), mappingProposal: input.mapping ? null : mapping, headers: reader.headers, warnings };
 	}
 	const result = await validateRows(reader.rows, reader.headers, mapping, { decimalComma: reader.format.decimalComma, exclude, problems: list, maxRows: limits.maxRows });
 	const format: SourceFormat = { type: 'csv', ...reader.format };
 	return conclude(input, list, mapping, warnings, format, reader, result);
-}
-
-async function drain(rows: AsyncIterable<DataRow>): Promise<void> {
-	// Stop the parser without reading the rest of the file.
-	const it = rows[Symbol.asyncIterator]();
-	await it.return?.();
 }
 
 async function finishTable(input: ReadRunFileInput, t: SheetTable, maxProblems: number, exclude: Set<number>, warnings: string[]): Promise<ReadRunFileResult> {
