@@ -377,7 +377,7 @@ export function solveNonlinearAt(sys: NonlinearSystem, alphaDeg: number, warm: N
 	if (typeof alphaDeg !== 'number' || !Number.isFinite(alphaDeg)) throw new Error(`nonlinear lifting line: alphaDeg must be a finite number (got ${String(alphaDeg)})`);
 	const N = sys.N;
 	const alpha = alphaDeg * DEG;
-	let A = warm.A && warm.A.length === N ? Float64Array.from(warm.A) : new Float64Array(N);
+	let A: Float64Array = warm.A && warm.A.length === N ? Float64Array.from(warm.A) : new Float64Array(N);
 	let st = residual(sys, A, alpha);
 	let lu = warm.lu && warm.lu.n === N ? warm.lu : undefined;
 	let fresh = false;
@@ -435,9 +435,9 @@ export function solveNonlinearAt(sys: NonlinearSystem, alphaDeg: number, warm: N
 	return buildResult(sys, alphaDeg, A, st, iterations, factorizations);
 }
 
-function levenbergMarquardt(sys: NonlinearSystem, A0: Float64Array, alpha: number, st0: State, maxIt: number) {
+function levenbergMarquardt(sys: NonlinearSystem, A0: Float64Array, alpha: number, st0: State, maxIt: number): { A: Float64Array; st: State; iterations: number } {
 	const N = sys.N;
-	let A = A0;
+	let A: Float64Array = A0;
 	let st = st0;
 	let lambda = 1e-3;
 	let it = 0;

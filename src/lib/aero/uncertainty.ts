@@ -140,16 +140,17 @@ export function balanceUncertainty(p: BalancePointInput, u: BalanceUncertaintyIn
 	const CL = (N * ca - A * sa) / qS;
 	const CD = (N * sa + A * ca) / qS;
 	// α uncertainty is given in degrees; sensitivities per degree.
-	const uCL = combine({ normal: ca / qS, axial: -sa / qS, q: -CL / q, area: -CL / S, alphaDeg: -CD * DEG }, u, k);
-	const uCD = combine({ normal: sa / qS, axial: ca / qS, q: -CD / q, area: -CD / S, alphaDeg: CL * DEG }, u, k);
-	const out: BalanceUncertaintyResult = { CL, CD, uCL, uCD, uAlphaDeg: combine({ alphaDeg: 1 }, u, k) };
+	const ui = u as Record<string, InputUncertainty | number | undefined>;
+	const uCL = combine({ normal: ca / qS, axial: -sa / qS, q: -CL / q, area: -CL / S, alphaDeg: -CD * DEG }, ui, k);
+	const uCD = combine({ normal: sa / qS, axial: ca / qS, q: -CD / q, area: -CD / S, alphaDeg: CL * DEG }, ui, k);
+	const out: BalanceUncertaintyResult = { CL, CD, uCL, uCD, uAlphaDeg: combine({ alphaDeg: 1 }, ui, k) };
 	if (p.pitching !== undefined) {
 		const M = num('pitching', p.pitching);
 		const c = num('chord', p.chord);
 		if (c <= 0) throw new Error(`uncertainty: chord must be > 0 (got ${c})`);
 		const Cm = M / (qS * c);
 		out.Cm = Cm;
-		out.uCm = combine({ pitching: 1 / (qS * c), q: -Cm / q, area: -Cm / S }, u, k);
+		out.uCm = combine({ pitching: 1 / (qS * c), q: -Cm / q, area: -Cm / S }, ui, k);
 	}
 	return out;
 }
