@@ -8,6 +8,8 @@ import * as tokens from '$lib/server/auth/tokens';
 import * as signInRules from '$lib/server/auth/sign-in';
 import * as links from '$lib/server/auth/links';
 import * as mail from '$lib/server/mail';
+import { logRequests } from '$lib/server/log';
+import { securityHeaders } from '$lib/server/security-headers';
 
 /** Paths anyone may reach without signing in. */
 const PUBLIC_PATHS = [
@@ -100,7 +102,9 @@ const gate: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle: Handle = sequence(requestId, linkCheck, authHandle, identify, gate);
+// logRequests right after requestId so every later line carries the request id;
+// securityHeaders wraps every response the rest of the sequence returns.
+export const handle: Handle = sequence(requestId, logRequests, securityHeaders, linkCheck, authHandle, identify, gate);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status !== 404) console.error(`[${event.locals.requestId}] ${status} ${event.url.pathname}:`, error);
