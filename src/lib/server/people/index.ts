@@ -149,7 +149,8 @@ export async function checkInvitation(token: string, transaction?: Transaction):
 	const { Invitation, User } = getModels();
 	const inv = await Invitation.findOne({
 		where: { tokenHash: digest(token) },
-		include: [{ model: User, as: 'user' }],
+		// Inner join: FOR UPDATE cannot lock the nullable side of an outer join.
+		include: [{ model: User, as: 'user', required: true }],
 		transaction,
 		lock: transaction ? transaction.LOCK.UPDATE : undefined
 	});
