@@ -1,0 +1,16 @@
+import { json } from '@sveltejs/kit';
+import { denyApi } from '$lib/server/auth/guard';
+import * as correlation from '$lib/server/correlation';
+import { errorResponse } from '$lib/server/correlation/http';
+import type { RequestHandler } from './$types';
+
+/** GET — measured points, the current prediction (inputs and outputs) and its deltas (read). */
+export const GET: RequestHandler = async ({ locals, params }) => {
+	const denied = denyApi(locals, 'read');
+	if (denied) return denied;
+	try {
+		return json(await correlation.runCorrelation(Number(params.id)));
+	} catch (err) {
+		return errorResponse(err);
+	}
+};
