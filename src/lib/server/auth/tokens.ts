@@ -130,7 +130,8 @@ export async function revokeToken(ctx: Context, id: number, mayRevokeOthers: boo
 		const row = await ApiToken.findByPk(id, {
 			transaction,
 			lock: transaction.LOCK.UPDATE,
-			include: [{ model: User, as: 'user', attributes: ['email'] }]
+			// Inner join: FOR UPDATE cannot lock the nullable side of an outer join.
+			include: [{ model: User, as: 'user', attributes: ['email'], required: true }]
 		});
 		if (!row || (row.userId !== ctx.actor.id && !mayRevokeOthers)) throw new TokenError('not_found', 'No such token.');
 		if (!row.revokedAt) {
