@@ -31,8 +31,12 @@ export const NONLINEAR_TOLERANCE = 1e-10;
 export const NONLINEAR_MAX_ITERATIONS = 25;
 /** Smallest step fraction tried when under-relaxing a Newton step. */
 export const MIN_RELAXATION = 1 / 256;
+/** Step of the α continuation used by a single solve, deg. */
+export const CONTINUATION_STEP_DEG = 2;
 /** Iteration cap of the Levenberg–Marquardt fallback. */
-export const LM_MAX_ITERATIONS = 20;
+export const LM_MAX_ITERATIONS = 15;
+/** Newton gives way to the fallback after this many poor steps in a row with a fresh Jacobian. */
+export const STAGNATION_STEPS = 4;
 /**
  * Past stall the lifting-line equation need not have a root (solutions are
  * not unique, and collocated ones may not exist); a sweep keeps a point whose
@@ -383,7 +387,8 @@ export function solveNonlinearAt(sys: NonlinearSystem, alphaDeg: number, warm: N
 	let fresh = false;
 	let factorizations = 0;
 	let iterations = 0;
-	while (st.norm > sys.tolerance && iterations < sys.maxIterations) {
+	let slow = 0; // consecutive fresh-Jacobian steps that cut Σ F² by less than half
+	while (st.norm > sys.tolerance && iterations < sys.maxIterations && slow < STAGNATION_STEPS) {
 		iterations++;
 		if (!lu) {
 			lu = jacobian(sys, st.slope);
@@ -400,9 +405,8 @@ export function solveNonlinearAt(sys: NonlinearSystem, alphaDeg: number, warm: N
 			for (let j = 0; j < N; j++) An[j] = A[j] - omega * dA[j];
 			try {
 				next = residual(sys, An, alpha);
-			} catch (e) {
+			} catch {
 				next = undefined; // a trial step left a section table; try a shorter one
-				if (omega / 2 < MIN_RELAXATION) throw e;
 				continue;
 			}
 			if (next.sumSq < st.sumSq) break;
@@ -414,6 +418,7 @@ export function solveNonlinearAt(sys: NonlinearSystem, alphaDeg: number, warm: N
 		}
 		// Keep the factorisation while it contracts well (modified Newton).
 		if (next.sumSq > 0.0625 * st.sumSq) lu = undefined;
+		slow = fresh && next.sumSq > 0.5 * st.sumSq ? slow + 1 : 0;
 		fresh = false;
 		A = An;
 		st = next;
@@ -451,21 +456,27 @@ function levenbergMarquardt(sys: NonlinearSystem, A0: Float64Array, alpha: numbe
 			const row = i * N;
 			for (let j = 0; j < N; j++) J[row + j] = sys.S[row + j] + k * sys.W[row + j];
 		}
+		// JᵀJ and Jᵀ F accumulated row by row (contiguous access).
+		JtJ.fill(0);
+		g.fill(0);
+		for (let i = 0; i < N; i++) {
+			const row = i * N;
+			const fi = st.F[i];
+			for (let a = 0; a < N; a++) {
+				const ja = J[row + a];
+				if (ja === 0) continue;
+				g[a] += ja * fi;
+				const ra = a * N;
+				for (let b = a; b < N; b++) JtJ[ra + b] += ja * J[row + b];
+			}
+		}
 		let maxDiag = 0;
 		for (let a = 0; a < N; a++) {
-			let sg = 0;
-			for (let i = 0; i < N; i++) sg += J[i * N + a] * st.F[i];
-			g[a] = sg;
-			for (let b = a; b < N; b++) {
-				let sm = 0;
-				for (let i = 0; i < N; i++) sm += J[i * N + a] * J[i * N + b];
-				JtJ[a * N + b] = sm;
-				JtJ[b * N + a] = sm;
-			}
+			for (let b = a + 1; b < N; b++) JtJ[b * N + a] = JtJ[a * N + b];
 			maxDiag = Math.max(maxDiag, JtJ[a * N + a]);
 		}
 		let improved = false;
-		for (let tries = 0; tries < 12 && !improved; tries++) {
+		for (let tries = 0; tries < 6 && !improved; tries++) {
 			const M = Float64Array.from(JtJ);
 			for (let a = 0; a < N; a++) M[a * N + a] += lambda * maxDiag;
 			let dA: Float64Array;
@@ -544,7 +555,21 @@ function buildResult(sys: NonlinearSystem, alphaDeg: number, A: Float64Array, st
 
 /** Solve the nonlinear lifting line for one condition. */
 export function solveNonlinearLiftingLine(wing: Wing, sections: SectionTable[], condition: { alphaDeg: number }, options?: NonlinearOptions): NonlinearResult {
-	return solveNonlinearAt(prepareNonlinear(wing, sections, options), condition?.alphaDeg);
+	const sys = prepareNonlinear(wing, sections, options);
+	const alphaDeg = condition?.alphaDeg;
+	if (typeof alphaDeg !== 'number' || !Number.isFinite(alphaDeg)) throw new Error(`nonlinear lifting line: alphaDeg must be a finite number (got ${String(alphaDeg)})`);
+	// Continuation from α = 0 in steps of CONTINUATION_STEP_DEG: a cold start
+	// near stall would otherwise begin on the wrong side of the section peak.
+	const warm: NonlinearWarmStart = {};
+	const steps = Math.floor(Math.abs(alphaDeg) / CONTINUATION_STEP_DEG);
+	for (let k = 0; k < steps; k++) {
+		try {
+			solveNonlinearAt(sys, Math.sign(alphaDeg) * k * CONTINUATION_STEP_DEG, warm);
+		} catch {
+			break; // an intermediate α outside a table: start from what we have
+		}
+	}
+	return solveNonlinearAt(sys, alphaDeg, warm);
 }
 
 export interface SweepOptions extends NonlinearOptions {
