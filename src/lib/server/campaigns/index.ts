@@ -1,5 +1,5 @@
 import { QueryTypes } from 'sequelize';
-import { getSequelize } from '../db';
+import { getModels, getSequelize } from '../db';
 
 /** A campaign as pages and the API see it. */
 export interface CampaignListItem {
@@ -57,4 +57,24 @@ export async function listCampaigns(): Promise<CampaignListItem[]> {
 		startDate: r.start_date,
 		endDate: r.end_date
 	}));
+}
+
+export interface CampaignDetail {
+	campaign: { id: number; code: string; name: string; description: string | null; kind: 'tunnel' | 'flight'; status: string; plannedRuns: number | null; tolerances: Record<string, unknown>; startDate: string | null; endDate: string | null };
+	facility: { id: number; name: string; code: string; kind: string; testSection: unknown; corrections: unknown } | null;
+	configurations: { id: number; name: string; version: number; parentId: number | null; refArea: number | null; refSpan: number | null; refChord: number | null; momentRef: unknown }[];
+}
+
+/** One campaign with its facility and configurations, or null. */
+export async function getCampaign(id: number): Promise<CampaignDetail | null> {
+	const { Campaign, Facility, Configuration } = getModels();
+	const c = await Campaign.findByPk(id);
+	if (!c) return null;
+	const f = c.facilityId ? await Facility.findByPk(c.facilityId) : null;
+	const configs = await Configuration.findAll({ where: { campaignId: id }, order: [['name', 'ASC'], ['version', 'ASC']] });
+	return {
+		campaign: { id: Number(c.id), code: c.code, name: c.name, description: c.description ?? null, kind: c.kind, status: c.status, plannedRuns: c.plannedRuns ?? null, tolerances: c.tolerances ?? {}, startDate: c.startDate ?? null, endDate: c.endDate ?? null },
+		facility: f ? { id: Number(f.id), name: f.name, code: f.code, kind: f.kind, testSection: f.testSection ?? null, corrections: f.corrections ?? null } : null,
+		configurations: configs.map((x) => ({ id: Number(x.id), name: x.name, version: x.version, parentId: x.parentId === null || x.parentId === undefined ? null : Number(x.parentId), refArea: x.refArea ?? null, refSpan: x.refSpan ?? null, refChord: x.refChord ?? null, momentRef: x.momentRef ?? null }))
+	};
 }
