@@ -108,6 +108,8 @@ export interface PointsAnswer {
 
 export interface ImportResult {
 	run: RunDetail;
+	/** Some answers name the run by id only. */
+	runId?: number;
 	reductionVersion: number;
 	warnings: (string | { message: string })[];
 }
