@@ -67,3 +67,10 @@ export * from './flight-reduction';
 export * from './polar-fit';
 export * from './uncertainty';
 export * from './linalg';
+
+/**
+ * The caution shown beside predictions and reductions wherever they could
+ * feed flight or structural decisions.
+ */
+export const SAFETY_NOTICE =
+	'Predictions and reductions are preliminary engineering estimates. Flight-test and airworthiness decisions follow the organisation’s approved procedures, local regulations and licensed practice.';

@@ -36,7 +36,7 @@ export const CONTINUATION_STEP_DEG = 2;
 /** Iteration cap of the Levenberg–Marquardt fallback. */
 export const LM_MAX_ITERATIONS = 15;
 /** Newton gives way to the fallback after this many poor steps in a row with a fresh Jacobian. */
-export const STAGNATION_STEPS = 4;
+export const STAGNATION_STEPS = 2;
 /**
  * Past stall the lifting-line equation need not have a root (solutions are
  * not unique, and collocated ones may not exist); a sweep keeps a point whose
