@@ -41,6 +41,7 @@ export const actions = {
 	revokeToken: async (event) => {
 		requireCapability(event.locals, 'ownAccount', '/account');
 		const id = Number((await event.request.formData()).get('id'));
+		if (!Number.isSafeInteger(id) || id <= 0) return fail(404, { ok: false, message: 'No such token.' });
 		try {
 			const info = await tokens.revokeToken(actionContext(event), id, false);
 			return { ok: true, message: `Token “${info.name}” revoked.` };

@@ -35,6 +35,7 @@ export const actions = {
 	revoke: async (event) => {
 		requireCapability(event.locals, 'administer', '/admin/tokens');
 		const id = Number((await event.request.formData()).get('id'));
+		if (!Number.isSafeInteger(id) || id <= 0) return fail(404, { ok: false, message: 'No such token.' });
 		try {
 			const info = await tokens.revokeToken(actionContext(event), id, true);
 			return { ok: true, message: `Token “${info.name}” revoked.` };
