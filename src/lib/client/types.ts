@@ -99,6 +99,19 @@ export interface Point {
 	corrections: { deltaAlphaDeg?: number | null; deltaCD?: number | null; blockage?: number | null } | null;
 	flags: string[] | null;
 	excluded: boolean;
+	/** Stored detail: uncorrected values, forces, each correction's contribution. */
+	values?: {
+		row?: number;
+		uncorrected?: { alphaDeg?: number | null; CL?: number | null; CD?: number | null; Cm?: number | null; qPa?: number | null };
+		corrections?: {
+			solidBlockage?: { epsilon: number };
+			wakeBlockage?: { epsilon: number; method: string };
+			blockage?: { epsilon: number; dq: number; dCL: number; dCD: number; dCm: number };
+			liftInterference?: { dAlphaDeg: number; dCD: number };
+			streamlineCurvature?: { dAlphaDeg: number; dCm: number };
+		};
+		[key: string]: unknown;
+	};
 }
 
 export interface PointsAnswer {
