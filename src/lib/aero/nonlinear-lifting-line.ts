@@ -577,7 +577,7 @@ export interface SweepOptions extends NonlinearOptions {
 	alphaStepDeg?: number;
 	/** Stop at this α even before stall (default: the end of the tables). */
 	alphaEndDeg?: number;
-	/** Points computed past the peak before stopping (default 2). */
+	/** Converged points past the peak before stopping (default 1; approximate post-stall points do not count). */
 	pointsPastPeak?: number;
 }
 
@@ -595,14 +595,15 @@ export interface StallSweepResult {
 
 /**
  * Sweep α upward from `alphaStartDeg` in steps, continuing each solution from
- * the last, until CL has fallen for `pointsPastPeak` points; return CLmax, its
+ * the last, until CL has fallen for `pointsPastPeak` converged points; return CLmax, its
  * α, and where stall begins.
  */
 export function sweepToStall(wing: Wing, sections: SectionTable[], options: SweepOptions = {}): StallSweepResult {
 	const sys = prepareNonlinear(wing, sections, options);
 	const start = options.alphaStartDeg ?? 0;
 	const step = options.alphaStepDeg ?? 0.5;
-	const past = options.pointsPastPeak ?? 2;
+	const past = options.pointsPastPeak ?? 1;
+	if (!(Number.isInteger(past) && past >= 1)) throw new Error(`stall sweep: pointsPastPeak must be an integer ≥ 1 (got ${String(past)})`);
 	if (!Number.isFinite(start)) throw new Error(`stall sweep: alphaStartDeg must be a finite number (got ${String(start)})`);
 	if (!(step > 0)) throw new Error(`stall sweep: alphaStepDeg must be > 0 (got ${String(step)})`);
 	const end = options.alphaEndDeg ?? Infinity;
@@ -615,6 +616,13 @@ export function sweepToStall(wing: Wing, sections: SectionTable[], options: Swee
 	for (let k = 0; ; k++) {
 		const a = start + k * step;
 		if (a > end + 1e-12) break;
+		// Secant predictor from the last two converged points (equal α steps):
+		// in the linear range it is exact, so Newton starts at the answer.
+		if (points.length >= 2 && points[points.length - 1].converged && points[points.length - 2].converged && warm.A) {
+			const p1 = points[points.length - 1].coefficients;
+			const p0 = points[points.length - 2].coefficients;
+			warm.A = Float64Array.from(p1, (v, j) => 2 * v - p0[j]);
+		}
 		let r: NonlinearResult;
 		try {
 			r = solveNonlinearAt(sys, a, warm);
@@ -644,7 +652,7 @@ export function sweepToStall(wing: Wing, sections: SectionTable[], options: Swee
 		if (iPeak < 0 || r.CL > points[iPeak].CL) {
 			iPeak = points.length - 1;
 			falling = 0;
-		} else if (++falling >= past) break;
+		} else if (r.converged && ++falling >= past) break; // an approximate post-stall point does not end the sweep alone
 	}
 	if (points.length === 0) throw new Error(`stall sweep: no converged point (${notes.join('; ')})`);
 	const peakFound = iPeak > 0 && iPeak < points.length - 1;
