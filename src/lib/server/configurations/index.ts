@@ -130,7 +130,7 @@ async function latestVersions(names: string[], transaction?: Transaction): Promi
 	const out = new Map<string, number>();
 	if (names.length === 0) return out;
 	const rows = (await getSequelize().query(
-		'SELECT name, max(version)::int AS v FROM configurations WHERE name = ANY(:names) GROUP BY name',
+		'SELECT name, max(version)::int AS v FROM configurations WHERE name IN (:names) GROUP BY name',
 		{ replacements: { names }, type: 'SELECT', transaction }
 	)) as { name: string; v: number }[];
 	for (const r of rows) out.set(r.name, r.v);
