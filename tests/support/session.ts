@@ -15,10 +15,14 @@ export const demoAccount = (role: Role) => {
 	return a;
 };
 
-/** A documentation address (RFC 5737 TEST-NET) per test, sent as X-Forwarded-For, so failure limits of one test never block another. */
+/**
+ * A fresh documentation address (IPv6 2001:db8::/32, RFC 3849) per client,
+ * sent as X-Forwarded-For, so one test's failure limit never blocks another:
+ * the space is large enough that two clients never share one by chance.
+ */
 export function testAddress(): string {
-	const b = randomBytes(2);
-	return `198.51.${100 + (b[0] % 2)}.${1 + (b[1] % 254)}`;
+	const h = randomBytes(8).toString('hex').match(/.{4}/g)!;
+	return `2001:db8:${h.join(':')}`;
 }
 
 export function uniqueEmail(tag: string): string {
