@@ -4,7 +4,7 @@
  * point, weight-tare subtraction interpolated in α, and coefficients.
  *
  * Axis conventions (Etkin & Reid, *Dynamics of Flight*, ch. 4; Barlow, Rae &
- * Pope, *Low-Speed Wind Tunnel Testing*, 3rd ed., ch. 9): body x forward,
+ * Pope, *Low-Speed Wind Tunnel Testing*, 3rd ed., balance-data chapters, from memory): body x forward,
  * y right, z down. A balance reports normal force N (up, = −Z), axial force
  * A (aft, = −X), side force Y (right), and rolling, pitching, yawing moments
  * (right wing down, nose up, nose right positive).
@@ -103,7 +103,7 @@ const COMPONENTS = ['normal', 'axial', 'side', 'rolling', 'pitching', 'yawing'] 
 
 /**
  * Weight tare at α from a wind-off run, interpolated linearly in α
- * (Barlow, Rae & Pope, 3rd ed., ch. 9, weight tares). α outside the tare
+ * (Barlow, Rae & Pope, 3rd ed., weight tares; chapter from memory). α outside the tare
  * run's range is refused: extrapolating a tare is a silent error.
  */
 export function tareAt(tare: ArrayLike<TarePoint>, alphaDeg: number): Required<BodyComponents> {

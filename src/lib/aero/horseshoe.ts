@@ -24,7 +24,7 @@ export type Vec3 = [number, number, number];
 
 /**
  * Velocity induced at p by a straight vortex segment a→b of strength Γ
- * (Katz & Plotkin, Eq. 10.115): V = Γ/4π · (r1×r2)/|r1×r2|² · r0·(r1/|r1| − r2/|r2|).
+ * (Katz & Plotkin, §10.4.5): V = Γ/4π · (r1×r2)/|r1×r2|² · r0·(r1/|r1| − r2/|r2|).
  */
 export function biotSavartSegment(p: Vec3, a: Vec3, b: Vec3, gamma: number): Vec3 {
 	const r1x = p[0] - a[0], r1y = p[1] - a[1], r1z = p[2] - a[2];

@@ -17,17 +17,17 @@
  *   `atmosphereFromPressureTemperature`, `densityFromPressureTemperature`.
  * - `airspeed` — `airspeeds` (CAS/EAS/TAS/Mach by the subsonic compressible
  *   pitot relations; Anderson, *Fundamentals of Aerodynamics*, ch. 8;
- *   Kimberlin, *Flight Testing of Fixed-Wing Aircraft*, ch. 2),
+ *   Kimberlin, *Flight Testing of Fixed-Wing Aircraft*, airspeed-calibration chapter),
  *   `dynamicPressure`, `dynamicPressureFromMach`, `reynoldsNumber`.
  * - `planform` — `planformGeometry`, `validateWing`, `taperedWing`,
- *   `ellipticWing` (Raymer, *Aircraft Design*, ch. 7).
+ *   `ellipticWing` (Raymer, *Aircraft Design*, wing geometry).
  * - `lifting-line` — `solveLiftingLine`, `liftCurve` (one factorisation,
  *   superposition in α), `buildLiftingLineSystem`: Prandtl's lifting line by
  *   Glauert's Fourier series (Glauert 1926; Anderson ch. 5), Prandtl–Glauert
  *   compressibility; closed forms `ellipticLiftingLine` (Anderson ch. 5),
  *   `helmboldLiftSlope` (Anderson, *Aircraft Performance and Design*,
  *   Eq. 2.18a), `datcomLiftSlope` (USAF DATCOM §4.1.3.2),
- *   `raymerOswaldEfficiency` (Raymer Eq. 12.48, rule of thumb).
+ *   `raymerOswaldEfficiency` (Raymer, straight-wing estimate, rule of thumb).
  * - `horseshoe` — `solveHorseshoe`, `horseshoeDownwash`,
  *   `biotSavartSegment`, `biotSavartSemiInfinite`: discrete horseshoe
  *   vortices by the Biot–Savart law (Katz & Plotkin, *Low-Speed
@@ -38,7 +38,7 @@
  *   (Anderson ch. 5; Sivells & Neely, NACA TN 1269).
  * - `axes` — `bodyToWind`, `windToBody`, `transferMoments`, `tareAt`,
  *   `subtractTare`, `windCoefficients` (Etkin & Reid, ch. 4; Barlow, Rae &
- *   Pope, *Low-Speed Wind Tunnel Testing*, 3rd ed., ch. 9).
+ *   Pope, *Low-Speed Wind Tunnel Testing*, 3rd ed., balance-data chapters).
  * - `tunnel-corrections` — `correctTunnelPoint` (each correction reported
  *   separately), `solidBlockage`, `thomWakeBlockage`, `maskellWakeBlockage`
  *   (Barlow, Rae & Pope, 3rd ed., ch. 10; Glauert R&M 1566; Maskell R&M 3400).
@@ -52,7 +52,7 @@
  *   first-order Taylor-series propagation, RSS, k = 2 (AIAA S-071A-1999;
  *   ASME PTC 19.1).
  * - `linalg` — `luFactor`, `luSolve`, `solveDense` (Golub & Van Loan,
- *   Alg. 3.4.1).
+ *   Gaussian elimination with partial pivoting, §3.4).
  */
 export * from './units';
 export * from './atmosphere';

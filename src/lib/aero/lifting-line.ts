@@ -474,7 +474,7 @@ export function helmboldLiftSlope(a0: number, aspectRatio: number): number {
 
 /**
  * Swept, compressible lift slope (USAF DATCOM §4.1.3.2; Raymer, *Aircraft
- * Design*, Eq. 12.6): CLα = 2πA/[2 + √(A²β²/κ²·(1 + tan²Λ½c/β²) + 4)],
+ * Design*, ch. 12; equation from memory): CLα = 2πA/[2 + √(A²β²/κ²·(1 + tan²Λ½c/β²) + 4)],
  * β = √(1 − M²), κ = clα/(2π/β). Per rad.
  */
 export function datcomLiftSlope(aspectRatio: number, sectionSlope: number, mach = 0, halfChordSweepDeg = 0): number {
@@ -490,7 +490,7 @@ export function datcomLiftSlope(aspectRatio: number, sectionSlope: number, mach 
 
 /**
  * Oswald efficiency estimate for a straight wing (Raymer, *Aircraft Design*,
- * Eq. 12.48): e = 1.78(1 − 0.045·A^0.68) − 0.64. A rule of thumb, not a prediction.
+ * ch. 12, straight-wing estimate): e = 1.78(1 − 0.045·A^0.68) − 0.64. A rule of thumb, not a prediction.
  */
 export function raymerOswaldEfficiency(aspectRatio: number): number {
 	checkNum('raymer: aspectRatio', aspectRatio);

@@ -1,7 +1,7 @@
 /**
  * Dense LU factorisation with partial pivoting (Doolittle, row-major
  * Float64Array), after Golub & Van Loan, *Matrix Computations*, 4th ed.,
- * Alg. 3.4.1. Kept local because the solvers factor one small matrix and
+ * §3.4 (Gaussian elimination with partial pivoting). Kept local because the solvers factor one small matrix and
  * then solve many right-hand sides; no dependency offers that as plainly.
  */
 

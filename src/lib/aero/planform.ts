@@ -3,7 +3,7 @@
  * semi-span by stations at η = 2y/b, linear between stations and mirrored.
  * Geometric definitions (area, aspect ratio, mean aerodynamic chord) as in
  * Anderson, *Fundamentals of Aerodynamics*, ch. 5, and Raymer, *Aircraft
- * Design: A Conceptual Approach*, ch. 7.
+ * Design: A Conceptual Approach*, wing-geometry section (chapter from memory).
  */
 
 const DEG = Math.PI / 180;

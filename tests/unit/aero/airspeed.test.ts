@@ -32,7 +32,7 @@ describe('subsonic compressible pitot relation (Anderson, Fundamentals of Aerody
 	});
 });
 
-describe('airspeeds: CAS, EAS, TAS, Mach (Kimberlin, Flight Testing of Fixed-Wing Aircraft, ch. 2)', () => {
+describe('airspeeds: CAS, EAS, TAS, Mach (Kimberlin, Flight Testing of Fixed-Wing Aircraft, airspeed chapter; definitions)', () => {
 	it('at sea-level standard CAS = EAS = TAS (definition of CAS and EAS), 1e-9 relative', () => {
 		const s = airspeeds(100, 'TAS', 101325, 288.15);
 		expect(rel(s.cas, 100)).toBeLessThan(1e-9);

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { bodyToWind, windToBody, transferMoments, tareAt, subtractTare, windCoefficients } from '$lib/aero/axes';
 
-describe('body to wind axes (Etkin & Reid, Dynamics of Flight, ch. 4; Barlow, Rae & Pope, 3rd ed., ch. 9)', () => {
+describe('body to wind axes (Etkin & Reid, Dynamics of Flight, ch. 4; Barlow, Rae & Pope, 3rd ed., balance data; chapter from memory)', () => {
 	it.each([
 		// N, A, α: L = N cosα − A sinα, D = N sinα + A cosα (hand-evaluated)
 		[100, 5, 0, 100, 5],
@@ -45,7 +45,7 @@ describe('moment transfer M_P = M_B + r × F (statics)', () => {
 	});
 });
 
-describe('weight tares interpolated in α (Barlow, Rae & Pope, 3rd ed., ch. 9)', () => {
+describe('weight tares interpolated in α (Barlow, Rae & Pope, 3rd ed., balance data; chapter from memory)', () => {
 	const tare = [
 		{ alphaDeg: -4, normal: 1, axial: 0.2, pitching: -0.1 },
 		{ alphaDeg: 0, normal: 2, axial: 0.3, pitching: 0 },

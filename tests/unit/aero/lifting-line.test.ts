@@ -125,7 +125,7 @@ describe('induced-drag factor δ versus taper (Anderson, Fundamentals of Aerodyn
 		const r = solveLiftingLine(taperedWing(6, 6, 1), { alphaDeg: 5 });
 		const a0 = 2 * Math.PI;
 		expect(r.liftSlope).toBeCloseTo(a0 / (1 + (a0 / (Math.PI * 6)) * (1 + r.tau)), 12);
-		expect(r.tau).toBeGreaterThan(0.1); // Anderson Fig. 5.18: τ ≈ 0.15–0.2 for AR 6 rectangular (chart-read)
+		expect(r.tau).toBeGreaterThan(0.1); // Anderson ch. 5, τ-versus-taper chart: τ ≈ 0.15–0.2 for AR 6 rectangular (chart-read, from memory)
 		expect(r.tau).toBeLessThan(0.25);
 	});
 });
@@ -164,7 +164,7 @@ describe('closed-form lift slopes', () => {
 	it.each([[2, 5.8], [6, 6.02], [12, 6.28]])('DATCOM §4.1.3.2 (from memory) reduces to Helmbold at Λ = 0, M = 0: AR %f, a₀ %f (identity, 1e-12)', (AR, a0) => {
 		expect(datcomLiftSlope(AR, a0)).toBeCloseTo(helmboldLiftSlope(a0, AR), 12);
 	});
-	it('Raymer straight-wing Oswald estimate: A = 8 → e = 0.811 (Raymer, Aircraft Design, Eq. 12.48), ±0.001', () => {
+	it('Raymer straight-wing Oswald estimate: A = 8 → e = 0.811 (Raymer, Aircraft Design, straight-wing formula as in aero-checks.md), ±0.001', () => {
 		expect(Math.abs(raymerOswaldEfficiency(8) - 0.811)).toBeLessThan(1e-3);
 	});
 });

@@ -54,7 +54,7 @@ describe('sweep to stall and CLmax (Anderson, Fundamentals of Aerodynamics, ch. 
 		expect(s.stallOnset).not.toBeNull();
 		expect(s.stallOnset!.alphaDeg).toBeLessThanOrEqual(s.alphaAtCLmaxDeg + 0.5);
 	});
-	it('stall begins inboard on a rectangular wing and outboard on a highly tapered one (Anderson ch. 5; Raymer ch. 4 — qualitative)', () => {
+	it('stall begins inboard on a rectangular wing and outboard on a highly tapered one (Anderson ch. 5; Raymer, wing-geometry discussion of taper — qualitative, from memory)', () => {
 		const rect = sweepToStall(taperedWing(8, 8, 1), [stallTable], { terms: 40 });
 		const tapered = sweepToStall(taperedWing(8, 8, 0.2), [stallTable], { terms: 40 });
 		expect(rect.stallOnset!.eta).toBeLessThan(0.5);

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { planformGeometry, taperedWing, ellipticWing, validateWing, type Wing } from '$lib/aero/planform';
 
-describe('planform geometry (Raymer, Aircraft Design: A Conceptual Approach, ch. 7, trapezoidal wing)', () => {
+describe('planform geometry (Raymer, Aircraft Design: A Conceptual Approach, trapezoidal-wing MAC formulas; chapter from memory)', () => {
 	// MAC = (2/3)·c_r·(1 + λ + λ²)/(1 + λ); ȳ = (b/6)(1 + 2λ)/(1 + λ). Exact: 1e-12 relative.
 	it.each([0, 0.25, 0.5, 1])('taper λ = %f', (lam) => {
 		const b = 10;

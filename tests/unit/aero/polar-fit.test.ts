@@ -11,7 +11,7 @@ import {
 	fitOffsetPolar
 } from '$lib/aero/polar-fit';
 
-describe('Student t quantiles (Montgomery & Runger, Applied Statistics and Probability for Engineers, Appendix Table V; any t table), ±5e-4 (table digits)', () => {
+describe('Student t quantiles (Montgomery & Runger, Applied Statistics and Probability for Engineers, appendix t table, table number from memory; any t table), ±5e-4 (table digits)', () => {
 	it.each([
 		[0.975, 10, 2.228],
 		[0.975, 1, 12.706],
