@@ -595,3 +595,48 @@ export async function calibrationAgainstRuns(calibrationId: number): Promise<{ c
 	}
 	return { calibration: cal, runs: out };
 }
+
+export interface RunOverview {
+	id: number;
+	runNumber: string;
+	state: string;
+	testDate: string | null;
+	isTare: boolean;
+	repeatOfRunId: number | null;
+	configurationId: number | null;
+	configurationName: string | null;
+	configurationVersion: number | null;
+	reductionVersion: number | null;
+	predictionId: number | null;
+	predictedVersion: number | null;
+}
+
+/** Runs of a campaign with their current reduction and prediction (one query), for run pickers. */
+export async function campaignRunsOverview(campaignId: number): Promise<RunOverview[]> {
+	const rows = (await getSequelize().query(
+		`SELECT r.id, r.run_number, r.state, r.test_date, r.is_tare, r.repeat_of_run_id, r.configuration_id,
+		        c.name AS configuration_name, c.version AS configuration_version, red.version AS reduction_version,
+		        p.id AS prediction_id, p.configuration_version AS predicted_version
+		 FROM runs r
+		 LEFT JOIN configurations c ON c.id = r.configuration_id
+		 LEFT JOIN reductions red ON red.run_id = r.id AND red.is_current
+		 LEFT JOIN predictions p ON p.run_id = r.id AND p.is_current
+		 WHERE r.campaign_id = :campaignId ORDER BY r.run_number`,
+		{ replacements: { campaignId }, type: QueryTypes.SELECT }
+	)) as Record<string, any>[];
+	const n = (v: unknown) => (v == null ? null : Number(v));
+	return rows.map((r) => ({
+		id: Number(r.id),
+		runNumber: r.run_number,
+		state: r.state,
+		testDate: r.test_date ?? null,
+		isTare: r.is_tare,
+		repeatOfRunId: n(r.repeat_of_run_id),
+		configurationId: n(r.configuration_id),
+		configurationName: r.configuration_name ?? null,
+		configurationVersion: n(r.configuration_version),
+		reductionVersion: n(r.reduction_version),
+		predictionId: n(r.prediction_id),
+		predictedVersion: n(r.predicted_version)
+	}));
+}
