@@ -8,14 +8,16 @@ import type { Browser } from 'playwright-core';
 import { launchChromium } from '../support/browser';
 import { baseUrl } from '../support/env';
 import { demoAccount } from '../support/session';
-import { ROLES, ROLE_LABELS, type Role } from '../../src/lib/server/auth/roles';
+import { ROLES, ROLE_LABELS, can, type Capability, type Role } from '../../src/lib/server/auth/roles';
 
-const NAV: Record<Role, string[]> = {
-	admin: ['Campaigns', 'Account', 'Admin'],
-	test_engineer: ['Campaigns', 'Account'],
-	aerodynamicist: ['Campaigns', 'Account'],
-	program_manager: ['Campaigns', 'Account']
+/** Each navigation link and the capability it needs (as in AppFrame.svelte): add new links here. */
+const NAV_NEEDS: Record<string, Capability> = {
+	Campaigns: 'read',
+	Configurations: 'read',
+	Account: 'ownAccount',
+	Admin: 'administer'
 };
+const expectedNav = (role: Role, shown: string[]) => Object.keys(NAV_NEEDS).filter((l) => can(role, NAV_NEEDS[l]) && (shown.includes(l) || l === 'Admin' || l === 'Account'));
 
 describe('signing in through the browser', () => {
 	let browser: Browser;
@@ -41,8 +43,11 @@ describe('signing in through the browser', () => {
 			await page.waitForSelector('[data-testid="role-badge"]');
 			expect(new URL(page.url()).pathname).toBe(asked);
 			expect(await page.getByTestId('role-badge').textContent()).toBe(ROLE_LABELS[role]);
-			const nav = await page.locator('nav[aria-label="Main"] a').allTextContents();
-			expect(nav.map((t) => t.trim())).toEqual(NAV[role]);
+			const nav = (await page.locator('nav[aria-label="Main"] a').allTextContents()).map((t) => t.trim());
+			// Every link shown is known and allowed; Account and Admin are there exactly when the role may use them.
+			expect(nav.filter((l) => !(l in NAV_NEEDS)), 'links missing from NAV_NEEDS').toEqual([]);
+			expect(nav).toEqual(expectedNav(role, nav));
+			expect(nav.includes('Admin')).toBe(role === 'admin');
 			// Typing the admin address anyway: our 403 page for everyone but admins.
 			const res = await page.goto(`${baseUrl()}/admin/people`);
 			if (role === 'admin') {

@@ -24,7 +24,7 @@ export interface RouteCase {
 	/** HTTP method for API rows, 'GET' for pages, or '?/<action>' for a form action ('?/default' for the default one). */
 	method: string;
 	kind: 'page' | 'action' | 'api';
-	/** The path to request; `{campaign}` and `{run}` become seeded ids. */
+	/** The path to request; `{campaign}`, `{run}` and `{configuration}` become seeded ids. */
 	path: string;
 	/** The capability the route's guard checks, or 'public'. */
 	capability: Capability | 'public';
@@ -60,6 +60,13 @@ export const ROUTES: RouteCase[] = [
 	{ route: '/(app)/campaigns/[id=id]', method: 'GET', kind: 'page', path: '/campaigns/{campaign}', capability: 'read' },
 	{ route: '/(app)/campaigns/[id=id]/upload', method: 'GET', kind: 'page', path: '/campaigns/{campaign}/upload', capability: 'importRuns' },
 	{ route: '/(app)/runs/[id=id]', method: 'GET', kind: 'page', path: '/runs/{run}', capability: 'read' },
+	{ route: '/(app)/compare', method: 'GET', kind: 'page', path: '/compare', capability: 'read' },
+	{ route: '/(app)/configurations', method: 'GET', kind: 'page', path: '/configurations', capability: 'read' },
+	{ route: '/(app)/configurations/new', method: 'GET', kind: 'page', path: '/configurations/new', capability: 'editModels' },
+	{ route: '/(app)/configurations/new', method: '?/save', kind: 'action', path: '/configurations/new?/save', capability: 'editModels' },
+	{ route: '/(app)/configurations/[id=id]', method: 'GET', kind: 'page', path: '/configurations/{configuration}', capability: 'read' },
+	{ route: '/(app)/configurations/[id=id]', method: '?/save', kind: 'action', path: '/configurations/{configuration}?/save', capability: 'editModels', ok: [400, 404] },
+	{ route: '/(app)/configurations/[id=id]', method: '?/duplicate', kind: 'action', path: `/configurations/${NONE}?/duplicate`, capability: 'editModels', ok: [400, 404] },
 	{ route: '/(app)/account', method: 'GET', kind: 'page', path: '/account', capability: 'ownAccount' },
 	{ route: '/(app)/account', method: '?/profile', kind: 'action', path: '/account?/profile', capability: 'ownAccount' },
 	{ route: '/(app)/account', method: '?/createToken', kind: 'action', path: '/account?/createToken', capability: 'ownAccount' },
@@ -184,6 +191,7 @@ describe('authorization matrix', () => {
 		try {
 			ids.campaign = String((await db.query('SELECT min(id) AS id FROM campaigns')).rows[0].id ?? NONE);
 			ids.run = String((await db.query('SELECT min(id) AS id FROM runs')).rows[0].id ?? NONE);
+			ids.configuration = String((await db.query('SELECT min(id) AS id FROM configurations')).rows[0].id ?? NONE);
 		} finally {
 			await db.end();
 		}
