@@ -78,6 +78,7 @@ class UploadTap {
 	private readonly out = createWriteStream(this.path);
 	private readonly it: AsyncIterator<Uint8Array>;
 	private lastReport = 0;
+	private writeError: Error | null = null;
 	constructor(
 		body: ReadableStream<Uint8Array> | AsyncIterable<Uint8Array>,
 		readonly limit: number,
@@ -85,6 +86,8 @@ class UploadTap {
 		readonly progress: (p: ImportProgress) => void
 	) {
 		this.it = (body as AsyncIterable<Uint8Array>)[Symbol.asyncIterator]();
+		// A write error surfaces in finish(); cleanup() may remove the folder before the stream opened.
+		this.out.on('error', (e) => (this.writeError ??= e));
 		if (total !== null && total > limit) throw tooLarge(limit);
 	}
 	async next(): Promise<IteratorResult<Uint8Array>> {
@@ -117,8 +120,10 @@ class UploadTap {
 	}
 	async finish(): Promise<{ sha256: string; size: number }> {
 		while (!this.done) await this.next();
+		if (this.writeError) throw this.writeError;
 		this.out.end();
 		await once(this.out, 'finish');
+		if (this.writeError) throw this.writeError;
 		return { sha256: this.hash.digest('hex'), size: this.size };
 	}
 	/** Read and drop what the client still sends, so an early answer does not break its upload. */
@@ -249,6 +254,7 @@ function arrayLiteral(cells: DataRow['cells'], width: number, decimalComma: bool
 /** Streams sample lines into COPY on the transaction's connection, with back-pressure. */
 class SampleCopy {
 	private buf = '';
+	private closed = false;
 	private error: Error | null = null;
 	private readonly stream: ReturnType<typeof copyFrom>;
 	private readonly ended: Promise<void>;
@@ -275,7 +281,15 @@ class SampleCopy {
 			if (!ok) await Promise.race([once(this.stream, 'drain'), this.ended]);
 		}
 	}
+	/** Stop the COPY (CopyFail), so the connection can roll back. */
+	async abort(): Promise<void> {
+		if (this.closed) return;
+		this.closed = true;
+		this.stream.destroy(new Error('import abandoned'));
+		await this.ended.catch(() => {});
+	}
 	async end(): Promise<void> {
+		this.closed = true;
 		if (this.buf) this.stream.write(this.buf);
 		this.buf = '';
 		this.stream.end();
@@ -397,12 +411,13 @@ export async function importRun(actor: Actor, input: ImportInput, onProgress: (p
 		if (!r || Number(r.campaignId) !== Number(campaign.id)) throw new RunError(422, 'invalid_reference', `Run ${runId} is not a run of this campaign.`, [{ field, message: 'not in this campaign' }]);
 		if (field === 'tareRunId' && !r.isTare) throw new RunError(422, 'invalid_reference', `Run ${r.runNumber} is not a tare run.`, [{ field, message: 'not a tare run' }]);
 	}
-	if (!input.body) throw new RunError(400, 'empty_body', 'Send the file as the request body.');
+	if (!input.body) throw new RunError(422, 'empty_file', `'${q.name}' is empty: there is nothing to import.`, [{ file: q.name, message: 'the request has no body (the file has no bytes)' }]);
 	const given = input.mappingHeader ? decodeMappingHeader(input.mappingHeader) : null;
 
 	const tap = new UploadTap(input.body, maxUploadBytes(), input.contentLength, onProgress);
 	let transaction: Transaction | null = null;
 	let stored: storage.StoredFile | null = null;
+	let copy: SampleCopy | null = null;
 	try {
 		let f: Prepared;
 		try {
@@ -442,7 +457,8 @@ export async function importRun(actor: Actor, input: ImportInput, onProgress: (p
 			{ runId: run.id, name: q.name, size: 0, sha256: 'pending', contentType: input.contentType, sheet: f.sheet, columnMapping: mapping as unknown as Record<string, unknown> },
 			{ transaction: t }
 		);
-		const copy = new SampleCopy(t);
+		copy = new SampleCopy(t);
+		const sampleCopy = copy;
 		const exclude = new Set(q.exclude ?? []);
 		const width = f.headers.length;
 		const prefix = `${run.id}\t${sf.id}\t`;
@@ -455,7 +471,7 @@ export async function importRun(actor: Actor, input: ImportInput, onProgress: (p
 						const c = r.cells[runColumn.index];
 						firstRunCell = c === null || c === undefined ? null : String(c).trim() || null;
 					}
-					await copy.add(`${prefix}${r.row}\t${arrayLiteral(r.cells, width, f.decimalComma)}\n`);
+					await sampleCopy.add(`${prefix}${r.row}\t${arrayLiteral(r.cells, width, f.decimalComma)}\n`);
 				}
 				if (++seen % 50_000 === 0) onProgress({ phase: 'parse', done: seen });
 				yield r;
@@ -473,7 +489,7 @@ export async function importRun(actor: Actor, input: ImportInput, onProgress: (p
 			f.list.add(null, null, null, null, result.excluded.length > 0 ? 'every data row was excluded' : `the file has a header (line ${f.headerRow}) but no data rows`);
 		}
 		if (f.list.total > 0) throw invalidFile(q.name, f.list.items, f.list.more, f.list.summary(), { headers: f.headers });
-		await copy.end();
+		await sampleCopy.end();
 
 		const { sha256, size } = await tap.finish();
 		onProgress({ phase: 'store', done: 0, total: size });
@@ -540,6 +556,7 @@ export async function importRun(actor: Actor, input: ImportInput, onProgress: (p
 		onProgress({ phase: 'reduce', done: 1, total: 1 });
 		return { runId: Number(run.id), reductionVersion: version, warnings: [...warnings, ...out.warnings] };
 	} catch (e) {
+		if (copy) await copy.abort();
 		if (transaction) await transaction.rollback().catch(() => {});
 		if (stored) await stored.discard();
 		if (!(e instanceof RunError && e.status === 413)) await tap.drain();
