@@ -20,6 +20,7 @@ import {
 	type SectionTable,
 	type Wing
 } from '../src/lib/aero/index';
+import os from 'node:os';
 
 /** Run `fn` repeatedly (at least `minRuns`, until `budgetMs` is spent) and return the median time in µs. */
 function medianMicros(fn: () => unknown, minRuns = 7, budgetMs = 400): { median: number; runs: number } {
@@ -60,8 +61,8 @@ function denseMatrix(n: number): { a: Float64Array; b: Float64Array } {
 
 const fmt = (v: number) => (v >= 1000 ? v.toFixed(0) : v.toFixed(1)).padStart(10);
 const rows: string[] = [];
-rows.push('terms |  one solve µs | lift curve (41) µs | nonlinear sweep µs | dense LU µs | curve/LU | sweep CLmax');
-rows.push('------|---------------|--------------------|--------------------|-------------|----------|------------');
+rows.push('terms |  one solve µs | lift curve (41) µs | nonlinear sweep µs | dense LU µs | curve/LU | sweep/LU | sweep CLmax');
+rows.push('------|---------------|--------------------|--------------------|-------------|----------|----------|------------');
 for (const n of [50, 100, 200]) {
 	const one = medianMicros(() => solveLiftingLine(wing, { alphaDeg: 5 }, { terms: n }));
 	const curve = medianMicros(() => liftCurve(wing, alphas, { terms: n }));
@@ -72,7 +73,7 @@ for (const n of [50, 100, 200]) {
 	const { a, b } = denseMatrix(n);
 	const lu = medianMicros(() => luSolve(luFactor(a, n), b));
 	rows.push(
-		`${String(n).padStart(5)} | ${fmt(one.median)}    | ${fmt(curve.median)}         | ${fmt(sweep.median)}         | ${fmt(lu.median)}  | ${(curve.median / lu.median).toFixed(2).padStart(8)} | ${clmax.toFixed(4)}`
+		`${String(n).padStart(5)} | ${fmt(one.median)}    | ${fmt(curve.median)}         | ${fmt(sweep.median)}         | ${fmt(lu.median)}  | ${(curve.median / lu.median).toFixed(2).padStart(8)} | ${(sweep.median / lu.median).toFixed(0).padStart(8)} | ${clmax.toFixed(4)}`
 	);
 }
 
@@ -95,7 +96,7 @@ const steady = medianMicros(() => {
 }, 5, 2000);
 
 console.log('Spanline aero core benchmark (median over repeated runs, same process)');
-console.log(`node ${process.version}, ${new Date().toISOString()}`);
+console.log(`node ${process.version}, ${new Date().toISOString()}; load average ${os.loadavg().map((v) => v.toFixed(2)).join(' ')} on ${os.cpus().length} CPUs`);
 console.log('');
 for (const r of rows) console.log(r);
 console.log('');
