@@ -577,7 +577,7 @@ export interface SweepOptions extends NonlinearOptions {
 	alphaStepDeg?: number;
 	/** Stop at this α even before stall (default: the end of the tables). */
 	alphaEndDeg?: number;
-	/** Converged points past the peak before stopping (default 1; approximate post-stall points do not count). */
+	/** Points past the peak before stopping (default 1; an approximate post-stall point counts only if its fall exceeds 10× its error). */
 	pointsPastPeak?: number;
 }
 
@@ -652,7 +652,13 @@ export function sweepToStall(wing: Wing, sections: SectionTable[], options: Swee
 		if (iPeak < 0 || r.CL > points[iPeak].CL) {
 			iPeak = points.length - 1;
 			falling = 0;
-		} else if (r.converged && ++falling >= past) break; // an approximate post-stall point does not end the sweep alone
+		} else {
+			// An approximate post-stall point ends the sweep only when its fall
+			// from the peak is well above its own error, ΔCL ≈ π·AR·residual.
+			const drop = points[iPeak].CL - r.CL;
+			const significant = r.converged || drop > 10 * Math.PI * sys.aspectRatio * r.residual;
+			if (significant && ++falling >= past) break;
+		}
 	}
 	if (points.length === 0) throw new Error(`stall sweep: no converged point (${notes.join('; ')})`);
 	const peakFound = iPeak > 0 && iPeak < points.length - 1;
