@@ -45,6 +45,11 @@ const env = {
 	ORIGIN: origin,
 	BODY_SIZE_LIMIT: 'Infinity',
 	SPANLINE_TEST_URL: origin,
+	// Tests give each client its own (documentation-range) address in
+	// X-Forwarded-For, so one test's failure lock never blocks another's.
+	// Production sets these only behind a trusted proxy.
+	ADDRESS_HEADER: 'x-forwarded-for',
+	XFF_DEPTH: '1',
 	// The S3-compatible fake; the app itself stores raw files in PostgreSQL
 	// unless SPANLINE_STORAGE=s3. Tests of the S3 backend use these.
 	SPANLINE_TEST_S3_ENDPOINT: `http://127.0.0.1:${s3Port}`,
