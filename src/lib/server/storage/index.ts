@@ -62,6 +62,10 @@ export function s3Client(s: S3Settings): S3Client {
 		endpoint: s.endpoint,
 		region: s.region,
 		forcePathStyle: s.forcePathStyle,
+		// Checksums only where S3 requires them: the default streams bodies as aws-chunked with a
+		// trailing checksum, which S3-compatible stores such as s3rver keep verbatim.
+		requestChecksumCalculation: 'WHEN_REQUIRED',
+		responseChecksumValidation: 'WHEN_REQUIRED',
 		credentials: s.accessKeyId && s.secretAccessKey ? { accessKeyId: s.accessKeyId, secretAccessKey: s.secretAccessKey } : undefined
 	});
 }
