@@ -32,7 +32,8 @@ const EXPECTED_TABLES = [
 	'points',
 	'predictions',
 	'deltas',
-	'audit_events'
+	'audit_events',
+	'calibrations'
 ].sort();
 
 let sequelize: Sequelize;
