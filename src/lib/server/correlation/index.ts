@@ -174,7 +174,12 @@ export async function predictRun(ctx: Context, runId: number, req: PredictReques
 		if (req.solver?.solver && req.solver.solver !== SOLVER_LINEAR) {
 			throw new CorrelationError('invalid', `Unknown solver '${req.solver.solver}' (available: ${SOLVER_LINEAR}).`, [{ field: 'solver.solver', message: 'unknown solver' }]);
 		}
-		const mean = (v: number[]) => v.reduce((a, b) => a + b, 0) / v.length;
+		// The run's representative Mach and Reynolds numbers: the median of its points (nominally constant in a sweep).
+		const mean = (v: number[]) => {
+			const s = [...v].sort((a, b) => a - b);
+			const k = s.length >> 1;
+			return s.length % 2 ? s[k] : (s[k - 1] + s[k]) / 2;
+		};
 		const inputs: PredictionInputs = jsonSafe({
 			wing,
 			alphasDeg: measured.map((p) => p.alphaDeg),
