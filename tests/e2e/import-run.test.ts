@@ -72,7 +72,7 @@ describe('a test engineer imports a run through the pages', () => {
 
 		const item = page.locator('[data-testid="import-item"]').first();
 		await item.locator('[data-testid="mapping-table"]').waitFor({ timeout: 20_000 });
-		expect(await item.locator('[data-testid="layout"]').textContent()).toContain('separator “,”');
+		expect(await item.locator('[data-testid="layout"]').textContent()).toContain('separator “,”, decimal point');
 		// Proposed from the headers: Alpha [deg] → α in degrees, Lift [N] → lift in N.
 		expect(await item.locator('[data-testid="field-2"]').inputValue()).toBe('alpha');
 		expect(await item.locator('[data-testid="unit-2"]').inputValue()).toBe('deg');
@@ -86,7 +86,12 @@ describe('a test engineer imports a run through the pages', () => {
 		// Progress shows (the bars appear while the request runs) ...
 		await item.locator('[data-testid="upload-progress"]').waitFor({ state: 'attached', timeout: 10_000 }).catch(() => undefined);
 		// ... and ends on the run page.
-		await page.waitForURL(/\/runs\/\d+$/, { timeout: 30_000 });
+		try {
+			await page.waitForURL(/\/runs\/\d+$/, { timeout: 30_000 });
+		} catch (e) {
+			await page.screenshot({ path: join(results, 'import-run-failure.png'), fullPage: true });
+			throw new Error(`no run page; the import item says: ${await item.textContent()}`, { cause: e });
+		}
 		await page.locator('[data-testid="points-table"]').waitFor({ timeout: 20_000 });
 
 		expect(await page.locator('[data-testid="points-table"] tbody tr').count()).toBe(21);
@@ -94,7 +99,7 @@ describe('a test engineer imports a run through the pages', () => {
 		for (const id of ['chart-lift', 'chart-polar', 'chart-cl2']) {
 			const legend = page.locator(`[data-testid="${id}"] [data-testid="chart-legend"] li`);
 			expect(await legend.count()).toBeGreaterThanOrEqual(1);
-			expect(await legend.allTextContents()).toContain('measured');
+			expect((await legend.allTextContents()).map((t) => t.trim())).toContain('measured');
 			expect(await inkedPixels(page, id)).toBeGreaterThan(500);
 		}
 		expect(await page.locator('[data-testid="caution"]').textContent()).toMatch(/preliminary engineering estimates/);
@@ -111,7 +116,12 @@ describe('a test engineer imports a run through the pages', () => {
 		await item.locator('[data-testid="run-number"]').fill(`E2E-BAD-${Date.now().toString(36)}`);
 		await item.locator('[data-testid="import-button"]').click();
 		const problems = item.locator('[data-testid="problem-list"]');
-		await problems.waitFor({ timeout: 20_000 });
+		try {
+			await problems.waitFor({ timeout: 20_000 });
+		} catch (e) {
+			await page.screenshot({ path: join(results, 'import-problems-failure.png'), fullPage: true });
+			throw new Error(`no problem list; the import item says: ${await item.textContent()}`, { cause: e });
+		}
 		const text = (await problems.textContent()) ?? '';
 		// wrong-types.csv line 5 has 'n/a' in "Alpha [deg]" (header on line 1).
 		expect(text).toMatch(/Alpha \[deg\]/);

@@ -17,7 +17,8 @@ export interface Mapping {
 }
 
 export interface Preview {
-	layout: { separator: string | null; decimal: string | null; preamble: number | string[] | null; headerRow: number; unitRow: number | null };
+	/** headerRow and unitRow are 1-based file lines (sheet rows for XLSX). */
+	layout: { separator: string | null; decimal: 'point' | 'comma'; preamble: { row: number; key: string; value: string }[]; headerRow: number; unitRow: number | null };
 	sheets?: string[];
 	headers: string[];
 	units: (string | null)[];
