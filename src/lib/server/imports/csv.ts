@@ -12,7 +12,7 @@
 import { isUtf8 } from 'node:buffer';
 import { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
-import { parse } from 'csv-parse';
+import { parse, CsvError } from 'csv-parse';
 import { ImportError, fmtCount, resolveLimits, type ImportLimits } from './errors';
 import { detectLayout, type DataRow, type TableHead } from './layout';
 import { looksDecimalComma, looksDecimalPoint } from './numbers';
@@ -251,7 +251,8 @@ export function detectDecimalComma(lines: string[], sep: Separator): boolean {
 function mapParseError(err: unknown, limits: ImportLimits): unknown {
 	if (err instanceof ImportError) return err;
 	const e = err as { code?: string; lines?: number; message?: string };
-	if (e && typeof e.code === 'string' && e.code.startsWith('CSV_')) {
+	// csv-parse's codes mostly start with CSV_, but not all (INVALID_OPENING_QUOTE).
+	if (err instanceof CsvError || (e && typeof e.code === 'string' && e.code.startsWith('CSV_'))) {
 		const line = typeof e.lines === 'number' ? e.lines : undefined;
 		if (e.code === 'CSV_MAX_RECORD_SIZE') {
 			return new ImportError(413, 'line_too_long', `line ${line ?? '?'} is longer than the limit of ${fmtCount(limits.maxLineLength)} characters`, [
@@ -265,7 +266,9 @@ function mapParseError(err: unknown, limits: ImportLimits): unknown {
 					? 'a closing quote is followed by other characters'
 					: e.code === 'CSV_NON_TRIMABLE_CHAR_AFTER_CLOSING_QUOTE'
 						? 'a closing quote is followed by other characters'
-						: 'the text cannot be split into fields';
+						: e.code === 'INVALID_OPENING_QUOTE'
+							? 'a quote appears in the middle of an unquoted field'
+							: 'the text cannot be split into fields';
 		return new ImportError(422, 'csv_syntax', `CSV syntax error at line ${line ?? '?'}: ${what}`, [{ row: line, message: what }]);
 	}
 	return err;

@@ -30,6 +30,12 @@ function trimCell(s: string): string {
  * cell is not a number (phrased to follow the quoted value).
  */
 export function parseNumberText(raw: string, decimalComma: boolean): number | string {
+	const value = parseNumberTextUnchecked(raw, decimalComma);
+	// '1e309' matches the number pattern but overflows a double.
+	return typeof value === 'number' && !Number.isFinite(value) ? 'is too large to be a finite number' : value;
+}
+
+function parseNumberTextUnchecked(raw: string, decimalComma: boolean): number | string {
 	const s = trimCell(raw);
 	if (s === '') return 'is empty';
 	if (decimalComma) {
