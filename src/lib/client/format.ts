@@ -2,7 +2,8 @@
 
 export function fmt(value: number | null | undefined, digits = 4): string {
 	if (value === null || value === undefined || !Number.isFinite(value)) return '—';
-	if (value === 0) return '0';
+	// Round-off residue (1e-40) and −0 read as zero.
+	if (Math.abs(value) < 1e-12) return '0';
 	const abs = Math.abs(value);
 	let text: string;
 	if (abs >= 1e6 || abs < 1e-4) text = value.toExponential(Math.max(0, digits - 1)).replace('e+', 'e');
@@ -16,7 +17,9 @@ export function fmt(value: number | null | undefined, digits = 4): string {
 /** Fixed decimals (angles, coefficients in tables). */
 export function fixed(value: number | null | undefined, decimals: number): string {
 	if (value === null || value === undefined || !Number.isFinite(value)) return '—';
-	return value.toFixed(decimals).replace(/^-/, '−');
+	const text = value.toFixed(decimals);
+	// "-0.0000" is a zero.
+	return /^-0\.?0*$/.test(text) ? text.slice(1) : text.replace(/^-/, '−');
 }
 
 export function bytes(n: number): string {

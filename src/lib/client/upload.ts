@@ -37,7 +37,8 @@ export function uploadRun(url: string, body: Blob, mapping: Mapping | null, cb: 
 		let outcome: { result?: ImportResult; error?: ApiError } = {};
 		const reader = new NdjsonReader<Record<string, unknown>>((line) => {
 			if ('result' in line) outcome = { result: line.result as ImportResult };
-			else if ('error' in line) outcome = { error: errorFromBody(422, JSON.stringify({ error: line.error })) };
+			// The final line carries the status the plain answer would have had.
+			else if ('error' in line) outcome = { error: errorFromBody(typeof line.status === 'number' ? line.status : 422, JSON.stringify({ error: line.error })) };
 			else if (typeof line.phase === 'string') cb.onPhase?.(line as unknown as ProgressLine);
 		});
 		xhr.open('POST', url);
@@ -68,10 +69,8 @@ export function uploadRun(url: string, body: Blob, mapping: Mapping | null, cb: 
 				}
 				if (outcome.result) return resolve(outcome.result);
 				if (outcome.error) {
-					// The stream's own error names its status through the code.
 					const e = outcome.error;
-					const status = e.code === 'duplicate_file' ? 409 : e.code === 'file_too_large' ? 413 : e.status;
-					return reject(new ApiError(status, { code: e.code, message: e.message, details: e.details }));
+					return reject(e);
 				}
 				return reject(new ApiError(xhr.status, { code: 'no_result', message: 'The import ended without a result.' }));
 			}
