@@ -37,7 +37,10 @@ async function openTunnelCampaignUpload(page: Page): Promise<void> {
 	await page.goto(`${baseUrl()}/`);
 	await page.locator('[data-testid="campaign-table"] tr', { hasText: 'Wind tunnel' }).first().locator('a').first().click();
 	await page.waitForURL(/\/campaigns\/\d+$/);
-	await page.locator('[data-testid="runs-table"]').waitFor();
+	await page.locator('[data-testid="runs-table"] tbody a').first().waitFor();
+	// The seeded campaign lists its runs (R001 … R005 of the demo) with their states.
+	expect(await page.locator('[data-testid="runs-table"] [data-testid="state-badge"]').count()).toBeGreaterThanOrEqual(5);
+	await page.screenshot({ path: join(results, 'campaign-page.png'), fullPage: true });
 	await page.click('[data-testid="upload-link"]');
 	await page.waitForURL(/\/campaigns\/\d+\/upload$/);
 }
