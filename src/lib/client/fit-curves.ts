@@ -3,7 +3,8 @@
  * 95 % confidence bands. The reduction does the fitting on the server
  * (src/lib/aero/polar-fit.ts); this only samples the fitted curves for
  * drawing. When the API sends a ready band (`band: [{ x, lo, hi }]`) it is
- * used as is; otherwise the band of the mean response is propagated from
+ * used as is (fits.ts sends `curve: [{ alphaDeg, CL, lower, upper }]` and
+ * `[{ CL, CD, lower, upper }]`, the band of the mean response); otherwise the band of the mean response is propagated from
  * the parameters' standard errors by the first-order (delta) method,
  * neglecting their covariance — marked "approx." in the legend.
  */
@@ -67,6 +68,22 @@ function readyLine(fit: Record<string, unknown>): XY[] | null {
 	return out.length > 1 ? out : null;
 }
 
+/**
+ * The API's sampled curve with its band ({ <x>, <y>, lower, upper }[], from
+ * src/lib/server/runs/fits.ts), optionally with x transformed (CL → CL²,
+ * then sorted, since ±CL meet at one CL²).
+ */
+function fromCurve(raw: unknown, xKey: string, yKey: string, tx?: (x: number) => number): { line: XY[]; band: BandXY[] } | null {
+	if (!Array.isArray(raw)) return null;
+	const rows = raw
+		.filter((r) => r && Number.isFinite(r[xKey]) && Number.isFinite(r[yKey]))
+		.map((r) => ({ x: tx ? tx(r[xKey]) : r[xKey], y: r[yKey] as number, lo: r.lower as number, hi: r.upper as number }));
+	if (rows.length < 2) return null;
+	if (tx) rows.sort((a, b) => a.x - b.x);
+	const band = rows.every((r) => Number.isFinite(r.lo) && Number.isFinite(r.hi)) ? rows.map((r) => ({ x: r.x, lo: r.lo, hi: r.hi })) : [];
+	return { line: rows.map((r) => ({ x: r.x, y: r.y })), band };
+}
+
 function samples(lo: number, hi: number, n = 41): number[] {
 	if (!(hi > lo)) return [lo];
 	return Array.from({ length: n }, (_, i) => lo + ((hi - lo) * i) / (n - 1));
@@ -77,7 +94,7 @@ const fmt = (v: number, d: number) => v.toFixed(d).replace(/^-/, '−');
 /** Lift curve CL = a·(α − α0) over the fitted linear range. */
 export function liftCurve(fits: Record<string, unknown> | null | undefined, points: readonly Point[]): FittedCurve | null {
 	const fit = pick(fits, 'liftCurve', 'lift', 'liftSlope');
-	if (!fit) return null;
+	if (!fit || fit.status === 'not_fitted') return null;
 	const aE = (fit.liftSlopePerDeg ?? fit.slopePerDeg ?? fit.a) as Num;
 	const a0E = (fit.alphaZeroLiftDeg ?? fit.alpha0Deg ?? fit.alpha0) as Num;
 	const a = val(aE);
@@ -89,8 +106,9 @@ export function liftCurve(fits: Record<string, unknown> | null | undefined, poin
 	const hi = range?.alphaMaxDeg ?? Math.max(...used);
 	if (!Number.isFinite(lo) || !Number.isFinite(hi)) return null;
 	const xs = samples(lo, hi);
-	const line = readyLine(fit) ?? xs.map((x) => ({ x, y: a * (x - a0) }));
-	const ready = readyBand(fit);
+	const curve = fromCurve(fit.curve, 'alphaDeg', 'CL');
+	const line = curve?.line ?? readyLine(fit) ?? xs.map((x) => ({ x, y: a * (x - a0) }));
+	const ready = curve?.band ?? readyBand(fit);
 	// δCL² ≈ ((α − α0)·δa)² + (a·δα0)², covariance neglected.
 	const ha = half(aE);
 	const h0 = half(a0E);
@@ -114,7 +132,7 @@ export function dragPolar(
 	against: 'CL' | 'CL2'
 ): FittedCurve | null {
 	const fit = pick(fits, 'parabolicPolar', 'polar', 'dragPolar');
-	if (!fit) return null;
+	if (!fit || fit.status === 'not_fitted') return null;
 	const cd0E = (fit.CD0 ?? fit.cd0) as Num;
 	const kE = (fit.k ?? fit.K) as Num;
 	const cd0 = val(cd0E);
@@ -134,10 +152,11 @@ export function dragPolar(
 		const h = Math.hypot(h0, cl2 * hk);
 		return { y, h };
 	};
-	const ready = against === 'CL' ? readyBand(fit) : null;
+	const curve = fromCurve(fit.curve, 'CL', 'CD', against === 'CL2' ? (cl) => cl * cl : undefined);
+	const ready = curve?.band ?? (against === 'CL' ? readyBand(fit) : null);
 	const e = val(fit.e as Num);
 	return {
-		line: xs.map((x) => ({ x, y: at(x).y })),
+		line: curve?.line ?? xs.map((x) => ({ x, y: at(x).y })),
 		band: ready ?? (h0 > 0 || hk > 0 ? xs.map((x) => { const { y, h } = at(x); return { x, lo: y - h, hi: y + h }; }) : []),
 		bandApprox: !ready,
 		summary: `CD0 = ${fmt(cd0, 4)} ± ${fmt(h0, 4)}, k = ${fmt(k, 4)} ± ${fmt(hk, 4)}${e !== null ? `, e = ${fmt(e, 3)}` : ''}`
