@@ -12,6 +12,7 @@ import * as m20261201T2350 from './migrations/2026-12-01T2350-create-predictions
 import * as m20261202T0100 from './migrations/2026-12-02T0100-audit-client-address';
 import * as m20261202T0300 from './migrations/2026-12-02T0300-source-file-layout';
 import * as m20261202T0310 from './migrations/2026-12-02T0310-correlation-current-and-calibrations';
+import * as m20261202T0400 from './migrations/2026-12-02T0400-notification-preferences-and-digests';
 import type { MigrationModule } from './migrations/types';
 
 /** Append new migrations at the end, in timestamp order. */
@@ -22,7 +23,8 @@ export const MIGRATIONS: ReadonlyArray<{ name: string; module: MigrationModule }
 	{ name: '2026-12-01T2350-create-predictions-deltas-audit', module: m20261201T2350 },
 	{ name: '2026-12-02T0100-audit-client-address', module: m20261202T0100 },
 	{ name: '2026-12-02T0300-source-file-layout', module: m20261202T0300 },
-	{ name: '2026-12-02T0310-correlation-current-and-calibrations', module: m20261202T0310 }
+	{ name: '2026-12-02T0310-correlation-current-and-calibrations', module: m20261202T0310 },
+	{ name: '2026-12-02T0400-notification-preferences-and-digests', module: m20261202T0400 }
 ];
 
 export const MIGRATIONS_TABLE = 'schema_migrations';
