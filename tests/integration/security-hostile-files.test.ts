@@ -19,7 +19,8 @@ import { baseCsv, hostileCorpus, type HostileCase } from '../support/hostile-cor
 
 const port = 3500 + Math.floor(Math.random() * 200);
 const origin = `http://127.0.0.1:${port}`;
-const logPath = join(projectRoot, 'test-results', `hostile-files-server-${port}.log`);
+// Outside test-results/, which the next `npm test` empties.
+const logPath = join(projectRoot, '.data', 'test-logs', `hostile-files-server-${port}.log`);
 const tag = Date.now().toString(36);
 const MB = 1024 * 1024;
 
@@ -60,7 +61,7 @@ function upload(c: Pick<HostileCase, 'fileName' | 'body' | 'query' | 'headers'>,
 }
 
 beforeAll(async () => {
-	mkdirSync(join(projectRoot, 'test-results'), { recursive: true });
+	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
 	const fd = openSync(logPath, 'w');
 	server = spawn('node', ['build'], {
 		cwd: projectRoot,

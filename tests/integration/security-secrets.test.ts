@@ -19,7 +19,8 @@ import { DEMO_ACCOUNTS } from '../../src/lib/server/db/seed-data';
 const fileEnv = ensureEnv() as Record<string, string>;
 const port = 3300 + Math.floor(Math.random() * 200);
 const origin = `http://127.0.0.1:${port}`;
-const logPath = join(projectRoot, 'test-results', `security-secrets-server-${port}.log`);
+// Outside test-results/, which the next `npm test` empties.
+const logPath = join(projectRoot, '.data', 'test-logs', `security-secrets-server-${port}.log`);
 let server: ChildProcess;
 
 /** Everything the server sent back, headers and bodies, to search for secrets too. */
@@ -57,7 +58,7 @@ async function signIn(email: string, password: string) {
 }
 
 beforeAll(async () => {
-	mkdirSync(join(projectRoot, 'test-results'), { recursive: true });
+	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
 	const fd = openSync(logPath, 'w');
 	server = spawn('node', ['build'], {
 		cwd: projectRoot,
