@@ -12,13 +12,26 @@
  * Flight points: CL = n·W/(q·S), q = ½ρ₀·EAS² (EAS taken equal to CAS at
  * these speeds, as in the generator), energy method CD = T·cos α/(q·S) in
  * steady level flight (Kimberlin, Flight Testing of Fixed-Wing Aircraft,
- * AIAA 2003, ch. 8).
+ * AIAA 2003, ch. 8). *
+ * Fits: least squares cross-checked against simple-statistics'
+ * linearRegression (a general-purpose reference library) on the same points;
+ * the 95 % intervals use Student t (Montgomery & Runger, Applied Statistics
+ * and Probability for Engineers, ch. 11).
+ *
+ * Independence from other test files running at the same time (the browser
+ * tests import the same fixtures through the page): the CSV fixtures are
+ * uploaded with a preamble line of this pass ("Test pass,<tag>"), so their
+ * SHA-256 is ours alone; no other test's runs are deleted. Files whose bytes
+ * cannot be varied harmlessly (the XLSX, and wrong-types.csv whose row
+ * numbers the messages are checked against) are cleared only from this
+ * file's own campaigns of earlier passes.
  */
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { join } from 'node:path';
 import { QueryTypes } from 'sequelize';
+import { linearRegression } from 'simple-statistics';
 import { baseUrl } from '../support/env';
 import { tokenFor } from '../support/auth';
 import { closeSequelize, getSequelize } from '../../src/lib/server/db';
@@ -66,6 +79,12 @@ function upload(campaign: number, name: string, body: Uint8Array | string, param
 	});
 }
 const fixture = (name: string) => readFileSync(join(FIX, name));
+/** A CSV fixture with a preamble line of this pass in front: same data, bytes (and SHA-256) of our own. */
+const own = (name: string) => {
+	const bytes = fixture(name);
+	const sep = bytes.toString('utf8').includes(';') ? ';' : ',';
+	return Buffer.concat([Buffer.from(`Test pass${sep}${tag}\n`), bytes]);
+};
 async function get(path: string, token = tokens.test_engineer) {
 	const res = await fetch(`${baseUrl()}/api/v1${path}`, { headers: { authorization: `Bearer ${token}` } });
 	return { status: res.status, body: await res.json() };
@@ -92,12 +111,15 @@ beforeAll(async () => {
 		aerodynamicist: await tokenFor('aerodynamicist'),
 		program_manager: await tokenFor('program_manager')
 	};
-	// Duplicate detection is by SHA-256 across the database: runs that hold these
-	// exact fixture bytes from an earlier pass over the same database go first.
-	const shas = ['tunnel-clean-polar.csv', 'tunnel-other-facility-us.csv', 'tunnel-tare-wind-off.csv', 'tunnel-two-sheets.xlsx', 'flight-steady-segments.csv', 'broken/wrong-types.csv'].map((f) =>
-		createHash('sha256').update(fixture(f)).digest('hex')
+	// Duplicate detection is by SHA-256 across the database. The CSVs are sent as
+	// own(...) bytes; the two files sent as they are go only from this file's own
+	// campaigns of earlier passes over the same database (codes IT-WT-/IT-FT-).
+	const shas = ['tunnel-two-sheets.xlsx', 'broken/wrong-types.csv'].map((f) => createHash('sha256').update(fixture(f)).digest('hex'));
+	await getSequelize().query(
+		`DELETE FROM runs WHERE id IN (SELECT s.run_id FROM source_files s JOIN runs r ON r.id = s.run_id JOIN campaigns c ON c.id = r.campaign_id
+		  WHERE s.sha256 IN (:shas) AND (c.code LIKE 'IT-WT-%' OR c.code LIKE 'IT-FT-%'))`,
+		{ replacements: { shas } }
 	);
-	await getSequelize().query('DELETE FROM runs WHERE id IN (SELECT run_id FROM source_files WHERE sha256 IN (:shas))', { replacements: { shas } });
 	facilityId = await insertId(
 		`INSERT INTO facilities (name, code, kind, test_section, corrections) VALUES (:name, :code, 'closed_jet', CAST(:ts AS jsonb), CAST(:c AS jsonb))`,
 		{ name: `Import test tunnel ${tag}`, code: `ITT-${tag}`, ts: JSON.stringify({ shape: 'rectangular', widthM: 1.2, heightM: 0.9, areaM2: C }), c: JSON.stringify({ delta: DELTA, tau2: TAU2, wakeMethod: 'thom' }) }
@@ -124,7 +146,7 @@ let cleanRunId: number;
 
 describe('tunnel fixtures reduce back to the stated polar', () => {
 	it('clean polar (SI, wind axes): uncorrected = polar within 1e-4, corrected = Barlow, Rae & Pope ch. 10 within 1e-5', async () => {
-		const res = await upload(tunnelCampaign, 'tunnel-clean-polar.csv', fixture('tunnel-clean-polar.csv'), { configurationId: tunnelConfig });
+		const res = await upload(tunnelCampaign, 'tunnel-clean-polar.csv', own('tunnel-clean-polar.csv'), { configurationId: tunnelConfig });
 		const body = await res.json();
 		expect(res.status, JSON.stringify(body)).toBe(201);
 		expect(body.reductionVersion).toBe(1);
@@ -178,8 +200,96 @@ describe('tunnel fixtures reduce back to the stated polar', () => {
 		expect(run.body.currentReduction.version).toBe(2);
 	});
 
+	it('version 2 (no corrections): fits give the scenario polar CLα = 0.085/°, α_L0 = −2°, CD0 = 0.011, k = 0.052, inside their 95 % intervals', async () => {
+		const { body } = await get(`/runs/${cleanRunId}/points?version=2`);
+		const { liftCurve, polar, offsetPolar, warnings } = body.reduction.fits;
+		expect(warnings).toBeInstanceOf(Array);
+		// Polar: the data are exact up to the 5-decimal force rounding (≤ 5e-8 in the coefficients).
+		expect(polar.status).toBe('fitted');
+		expect(polar.n).toBe(21);
+		expect(polar.CD0.value).toBeCloseTo(POLAR.CD0, 6);
+		expect(polar.k.value).toBeCloseTo(POLAR.K, 6);
+		expect(polar.CD0.ci95[0]).toBeLessThanOrEqual(POLAR.CD0);
+		expect(polar.CD0.ci95[1]).toBeGreaterThanOrEqual(POLAR.CD0);
+		expect(polar.k.ci95[0]).toBeLessThanOrEqual(POLAR.K);
+		expect(polar.k.ci95[1]).toBeGreaterThanOrEqual(POLAR.K);
+		expect(polar.r2).toBeGreaterThan(0.999999);
+		// e = 1/(π·AR·k), AR = b²/S = 1.2²/0.18 = 8 (Anderson, Fundamentals of Aerodynamics, ch. 5).
+		expect(polar.aspectRatio).toBeCloseTo(8, 12);
+		expect(polar.e.value).toBeCloseTo(1 / (Math.PI * 8 * POLAR.K), 5);
+		// Cross-check: simple-statistics' linearRegression of CD on CL² over the same points.
+		const pts = body.points as { idx: number; alphaDeg: number; CL: number; CD: number }[];
+		const ss = linearRegression(pts.map((p) => [p.CL * p.CL, p.CD]));
+		expect(polar.k.value).toBeCloseTo(ss.m, 10);
+		expect(polar.CD0.value).toBeCloseTo(ss.b, 10);
+		// Offset polar of a centred parabola: CL at minimum drag ≈ 0, CDmin ≈ CD0.
+		expect(offsetPolar.status).toBe('fitted');
+		expect(offsetPolar.CLminDrag.value).toBeCloseTo(0, 5);
+		expect(offsetPolar.CDmin.value).toBeCloseTo(POLAR.CD0, 6);
+		// Lift curve: the stall term starts at 9° and stays under the 0.01 linear-range tolerance at 10°
+		// (0.006), so the linear range ends at 10° and the slope sits 0.2 % under 0.085: stated tolerance 0.5 %.
+		expect(liftCurve.status).toBe('fitted');
+		expect(liftCurve.linearRange.alphaMinDeg).toBeCloseTo(-6, 9);
+		expect(liftCurve.linearRange.alphaMaxDeg).toBeLessThanOrEqual(POLAR.STALL_START + 1);
+		expect(Math.abs(liftCurve.liftSlopePerDeg.value / POLAR.CL_ALPHA - 1)).toBeLessThan(0.005);
+		expect(Math.abs(liftCurve.alphaZeroLiftDeg.value - POLAR.ALPHA0)).toBeLessThan(0.02);
+		expect(liftCurve.liftSlopePerDeg.ci95[0]).toBeLessThanOrEqual(POLAR.CL_ALPHA);
+		expect(liftCurve.liftSlopePerDeg.ci95[1]).toBeGreaterThanOrEqual(POLAR.CL_ALPHA);
+		expect(liftCurve.alphaZeroLiftDeg.ci95[0]).toBeLessThanOrEqual(POLAR.ALPHA0);
+		expect(liftCurve.alphaZeroLiftDeg.ci95[1]).toBeGreaterThanOrEqual(POLAR.ALPHA0);
+		expect(liftCurve.liftSlopePerRad.value).toBeCloseTo(liftCurve.liftSlopePerDeg.value / DEG, 9);
+		const lin = pts.filter((p) => liftCurve.linearRange.points.includes(p.idx));
+		const ls = linearRegression(lin.map((p) => [p.alphaDeg, p.CL]));
+		expect(liftCurve.liftSlopePerDeg.value).toBeCloseTo(ls.m, 10);
+		expect(liftCurve.alphaZeroLiftDeg.value).toBeCloseTo(-ls.b / ls.m, 8);
+		// CLmax: the file ends at 14° before the stall peak (fixtures/scenario.ts), so CLmax is the last point.
+		expect(liftCurve.CLmax).toBeCloseTo(cl(14), 6);
+		expect(liftCurve.alphaAtCLmaxDeg).toBeCloseTo(14, 9);
+		expect(liftCurve.CLmaxAtEdge).toBe(true);
+		// Chart curves: the line through the fit, the band around it and containing it.
+		expect(liftCurve.curve.length).toBeGreaterThan(10);
+		for (const c of liftCurve.curve) {
+			expect(c.CL).toBeCloseTo(ls.m * c.alphaDeg + ls.b, 9);
+			expect(c.lower).toBeLessThan(c.CL);
+			expect(c.upper).toBeGreaterThan(c.CL);
+		}
+		for (const c of polar.curve) {
+			expect(c.CD).toBeCloseTo(ss.b + ss.m * c.CL * c.CL, 10);
+			expect(c.lower).toBeLessThanOrEqual(c.CD);
+			expect(c.upper).toBeGreaterThanOrEqual(c.CD);
+		}
+		// Per-point expanded uncertainty (k = 2); α from the documented default u(α) = 0.05° → U = 0.1°.
+		for (const p of body.points) {
+			expect(p.uncertainty.coverage).toBe(2);
+			expect(p.uncertainty.alphaDeg).toBeCloseTo(0.1, 9);
+			expect(p.uncertainty.CL).toBeGreaterThan(0);
+			expect(p.uncertainty.CD).toBeGreaterThan(0);
+			// The force and q terms scale with the coefficient: U(CL) grows with |CL|.
+		}
+		expect(body.points[20].uncertainty.CL).toBeGreaterThan(body.points[4].uncertainty.CL);
+	});
+
+	it('version 1 (corrected): fits equal least squares of the corrected expectation (Barlow, Rae & Pope ch. 10), computed here', async () => {
+		const { body } = await get(`/runs/${cleanRunId}/points?version=1`);
+		const { liftCurve, polar } = body.reduction.fits;
+		const exp = Array.from({ length: 21 }, (_, i) => {
+			const a = -6 + i;
+			return { idx: i + 1, ...corrected(a, cl(a), cd(cl(a))) };
+		});
+		const ss = linearRegression(exp.map((p) => [p.CL * p.CL, p.CD]));
+		expect(polar.k.value).toBeCloseTo(ss.m, 5);
+		expect(polar.CD0.value).toBeCloseTo(ss.b, 6);
+		const lin = exp.filter((p) => liftCurve.linearRange.points.includes(p.idx));
+		const ls = linearRegression(lin.map((p) => [p.alphaDeg, p.CL]));
+		expect(liftCurve.liftSlopePerDeg.value).toBeCloseTo(ls.m, 5);
+		expect(liftCurve.alphaZeroLiftDeg.value).toBeCloseTo(-ls.b / ls.m, 4);
+		// The corrections lower the slope (Δα grows with CL) and raise k (ΔCD = δ(S/C)CL²).
+		expect(liftCurve.liftSlopePerDeg.value).toBeLessThan(POLAR.CL_ALPHA);
+		expect(polar.k.value).toBeGreaterThan(POLAR.K);
+	});
+
 	it('another facility (semicolons, decimal comma, preamble, unit row, lbf/psf/degF, body axes) gives the same polar', async () => {
-		const res = await upload(tunnelCampaign, 'tunnel-other-facility-us.csv', fixture('tunnel-other-facility-us.csv'), { configurationId: tunnelConfig });
+		const res = await upload(tunnelCampaign, 'tunnel-other-facility-us.csv', own('tunnel-other-facility-us.csv'), { configurationId: tunnelConfig });
 		const body = await res.json();
 		expect(res.status, JSON.stringify(body)).toBe(201);
 		expect(body.run.runNumber).toBe('27'); // from the preamble "Run;27"
@@ -198,7 +308,7 @@ describe('tunnel fixtures reduce back to the stated polar', () => {
 	});
 
 	it('a wind-off tare run is recognised, and subtracting it (interpolated in α) restores the polar', async () => {
-		const tareRes = await upload(tunnelCampaign, 'tunnel-tare-wind-off.csv', fixture('tunnel-tare-wind-off.csv'), { runNumber: `T-${tag}` });
+		const tareRes = await upload(tunnelCampaign, 'tunnel-tare-wind-off.csv', own('tunnel-tare-wind-off.csv'), { runNumber: `T-${tag}` });
 		const tare = await tareRes.json();
 		expect(tareRes.status, JSON.stringify(tare)).toBe(201);
 		expect(tare.run.isTare).toBe(true);
@@ -251,7 +361,7 @@ describe('tunnel fixtures reduce back to the stated polar', () => {
 
 describe('flight fixture: steady segments by the energy method', () => {
 	it('finds the five steady segments and reduces each to CL and CD of the stated polar', async () => {
-		const res = await upload(flightCampaign, 'flight-steady-segments.csv', fixture('flight-steady-segments.csv'), { configurationId: flightConfig, runNumber: `F-${tag}` });
+		const res = await upload(flightCampaign, 'flight-steady-segments.csv', own('flight-steady-segments.csv'), { configurationId: flightConfig, runNumber: `F-${tag}` });
 		const body = await res.json();
 		expect(res.status, JSON.stringify(body)).toBe(201);
 		expect(body.run.kind).toBe('flight');
@@ -272,6 +382,30 @@ describe('flight fixture: steady segments by the energy method', () => {
 			const CD = (FLIGHT.CD0 + FLIGHT.K * CL * CL) * Math.cos(p.alphaDeg * DEG);
 			expect(Math.abs(p.CD / CD - 1)).toBeLessThan(0.03);
 		});
+	});
+
+	it('flight: the polar is fitted on the segment points; too few points store a reason instead of failing', async () => {
+		const runs = await get(`/campaigns/${flightCampaign}/runs?kind=flight`);
+		const { body } = await get(`/runs/${runs.body.items[0].id}/points`);
+		const { polar } = body.reduction.fits;
+		expect(polar.status).toBe('fitted');
+		expect(polar.n).toBe(FLIGHT.SEGMENTS.length);
+		// CD carries the cos α of the thrust line and the noise of the segment means: 10 % on k and CD0.
+		expect(Math.abs(polar.k.value / FLIGHT.K - 1)).toBeLessThan(0.1);
+		expect(Math.abs(polar.CD0.value / FLIGHT.CD0 - 1)).toBeLessThan(0.1);
+		const ss = linearRegression(body.points.map((p: { CL: number; CD: number }) => [p.CL * p.CL, p.CD]));
+		expect(polar.k.value).toBeCloseTo(ss.m, 10);
+		for (const p of body.points) {
+			expect(p.uncertainty.CL).toBeGreaterThan(0);
+			expect(p.uncertainty.CD).toBeGreaterThan(0);
+		}
+		// Two points only (excluding three): the import of the version goes on, the fit states why not.
+		const r = await post(`/runs/${runs.body.items[0].id}/reductions`, { settings: { excludedPoints: [1, 2, 3] } });
+		expect(r.status, JSON.stringify(r.body)).toBe(201);
+		const v = await get(`/runs/${runs.body.items[0].id}/points`);
+		expect(v.body.reduction.fits.polar.status).toBe('not_fitted');
+		expect(v.body.reduction.fits.polar.reason).toMatch(/at least 3 points/);
+		expect(v.body.points.filter((p: { excluded: boolean }) => p.excluded)).toHaveLength(3);
 	});
 
 	it('re-reduction with a longer minimum duration finds no segments but keeps the samples', async () => {
@@ -330,7 +464,7 @@ describe('broken files: 4xx naming row and column, nothing stored', () => {
 describe('duplicates, roles and state changes', () => {
 	it('the same bytes again → 409 duplicate_file with the existing run id, nothing stored', async () => {
 		const before = await counts();
-		const res = await upload(tunnelCampaign, 'copy.csv', fixture('tunnel-clean-polar.csv'), { configurationId: tunnelConfig, runNumber: `D-${tag}` });
+		const res = await upload(tunnelCampaign, 'copy.csv', own('tunnel-clean-polar.csv'), { configurationId: tunnelConfig, runNumber: `D-${tag}` });
 		const body = await res.json();
 		expect(res.status).toBe(409);
 		expect(body.error.code).toBe('duplicate_file');
@@ -418,7 +552,7 @@ describe('progress, preview, profiles, download', () => {
 		const res = await fetch(`${baseUrl()}/api/v1/runs/${cleanRunId}/files/${f.id}`, { headers: { authorization: `Bearer ${tokens.test_engineer}` } });
 		expect(res.status).toBe(200);
 		const bytes = Buffer.from(await res.arrayBuffer());
-		expect(bytes.equals(fixture('tunnel-clean-polar.csv'))).toBe(true);
+		expect(bytes.equals(own('tunnel-clean-polar.csv'))).toBe(true);
 		expect(res.headers.get('x-spanline-sha256')).toBe(f.sha256);
 	});
 });

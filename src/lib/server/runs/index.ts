@@ -245,6 +245,7 @@ export async function reReduce(actor: Actor, runId: number, settings: ReductionS
 		excludedPoints: settings.excludedPoints ?? prev.excludedPoints,
 		segments: settings.segments ?? (prev.segments as ReductionSettingsInput['segments']),
 		thrustIncidenceDeg: settings.thrustIncidenceDeg ?? prev.thrustIncidenceDeg,
+		uncertainty: settings.uncertainty ?? prev.uncertainty,
 		note: settings.note
 	};
 	if (merged.tareRunId) {

@@ -21,6 +21,7 @@ import { bodyToWind, transferMoments, tareAt, windCoefficients, windToBody, type
 import { correctTunnelPoint, type TunnelSettings, type CorrectionContributions } from '../../aero/tunnel-corrections';
 import { detectSteadySegments, reduceFlightPoint, type SteadySegment } from '../../aero/flight-reduction';
 import type { ReductionSettingsInput } from './schemas';
+import { coefficientPointUncertainty, fitReduction, flightPointUncertainty, resolveUncertainty, tunnelPointUncertainty, type PointUncertainty } from './fits';
 
 const DEG = Math.PI / 180;
 
@@ -29,7 +30,13 @@ export type Columns = Map<string, ArrayLike<number>>;
 export interface FacilityInfo {
 	kind: string;
 	testSection: { areaM2?: number; widthM?: number; heightM?: number } | null;
+	/** Correction factors; `uncertainty` (optional) holds the balance calibration sheet's standard uncertainties. */
 	corrections: { delta?: number; tau2?: number; k1tau1?: number; wakeMethod?: string; [k: string]: unknown } | null;
+}
+
+/** Aspect ratio b²/S of the reference values, or null. */
+function aspectRatioOf(ref: ReferenceInfo): number | null {
+	return ref.span && ref.area ? (ref.span * ref.span) / ref.area : null;
 }
 
 export interface ReferenceInfo {
@@ -60,6 +67,8 @@ export interface PointOut {
 	reynolds: number | null;
 	mach: number | null;
 	values: Record<string, unknown>;
+	/** Expanded (k = 2) uncertainty of CL, CD, α (and Cm), or null when it cannot be estimated. */
+	uncertainty: PointUncertainty | null;
 	flags: string[];
 	excluded: boolean;
 }
@@ -208,6 +217,31 @@ export function reduceTunnel(cols: Columns, ctx: ReduceContext, s: ReductionSett
 	}
 	const tsettings: TunnelSettings | null = corr.settings ? { ...corr.settings, ...(maskell ? { maskell } : {}) } : null;
 
+	// Standard uncertainties; the run's largest load of each balance component stands in for full scale.
+	const unc = resolveUncertainty(s.uncertainty, ctx.facility?.corrections ?? null);
+	const maxLoads = { normal: 0, axial: 0, pitching: 0 };
+	for (const r of raws) {
+		if (!r.forces) continue;
+		maxLoads.normal = Math.max(maxLoads.normal, Math.abs(r.forces.normal));
+		maxLoads.axial = Math.max(maxLoads.axial, Math.abs(r.forces.axial));
+		maxLoads.pitching = Math.max(maxLoads.pitching, Math.abs(r.forces.pitching));
+	}
+	const uncertaintyOf = (r: Raw): PointUncertainty | null => {
+		try {
+			if (r.forces && r.q !== null && r.q > 0 && ref.area) {
+				return tunnelPointUncertainty(
+					{ normal: r.forces.normal, axial: r.forces.axial, ...(has('pitching_moment') && ref.chord ? { pitching: r.forces.pitching, chord: ref.chord } : {}), q: r.q, area: ref.area, alphaDeg: r.alphaDeg },
+					unc,
+					maxLoads
+				);
+			}
+			if ((coeffs || coeffsBody) && r.CL !== null) return coefficientPointUncertainty(unc);
+		} catch {
+			// an input outside the propagation's domain: no estimate for this point
+		}
+		return null;
+	};
+
 	const points: PointOut[] = [];
 	const sums = { dAlpha: 0, dCD: 0, eps: 0, n: 0 };
 	for (const r of raws) {
@@ -250,6 +284,7 @@ export function reduceTunnel(cols: Columns, ctx: ReduceContext, s: ReductionSett
 				temperatureK: round(r.T),
 				pressurePa: round(r.p)
 			},
+			uncertainty: uncertaintyOf(r),
 			flags: r.flags,
 			excluded: excluded.has(idx)
 		});
@@ -267,9 +302,11 @@ export function reduceTunnel(cols: Columns, ctx: ReduceContext, s: ReductionSett
 		tareRunId: s.tareRunId ?? null,
 		reference: ref,
 		corrections: corr.enabled ? { enabled: true, ...tsettings } : { enabled: false },
-		inputs: coeffs ? 'coefficients' : coeffsBody ? 'body-axis coefficients' : body ? 'body-axis forces' : 'wind-axis forces'
+		inputs: coeffs ? 'coefficients' : coeffsBody ? 'body-axis coefficients' : body ? 'body-axis forces' : 'wind-axis forces',
+		uncertaintyApplied: unc
 	};
-	return { settings: applied, points, corrections, fits: {}, conditions: conditionsOf(points), warnings };
+	const fits = fitReduction(points, aspectRatioOf(ref));
+	return { settings: applied, points, corrections, fits, conditions: conditionsOf(points), warnings: [...warnings, ...fits.warnings.filter((w) => !w.startsWith('the aspect ratio'))] };
 }
 
 function conditionsOf(points: PointOut[]): Record<string, number | null> {
@@ -321,6 +358,7 @@ export function reduceFlight(cols: Columns, ctx: ReduceContext, s: ReductionSett
 		throw new ReferenceMissing('the wing reference area and chord are not known: choose a configuration with reference values, or give settings.reference');
 	}
 	const excluded = new Set(s.excludedPoints ?? []);
+	const unc = resolveUncertainty(s.uncertainty, null);
 	const points: PointOut[] = segments.map((seg, k) => {
 		const m = (name: string) => seg.stats[name]?.mean;
 		const oat = m('oat');
@@ -344,6 +382,16 @@ export function reduceFlight(cols: Columns, ctx: ReduceContext, s: ReductionSett
 		if (r.powerOff) flags.push('power_off');
 		if (oat === undefined) flags.push('isa_temperature');
 		const idx = k + 1;
+		const thrust = m('thrust') ?? 0;
+		const thrustCoefficient = r.q > 0 ? (thrust * Math.cos((m('alpha') ?? 0) + (s.thrustIncidenceDeg ?? 0) * DEG)) / (r.q * (ref.area as number)) : 0;
+		let uncertainty: PointUncertainty | null = null;
+		if (Number.isFinite(r.CL) && Number.isFinite(r.CD)) {
+			try {
+				uncertainty = flightPointUncertainty({ CL: r.CL, CD: r.CD, loadFactor: m('load_factor') ?? 1, thrustCoefficient }, unc);
+			} catch {
+				uncertainty = null;
+			}
+		}
 		return {
 			idx,
 			alphaDeg: m('alpha') !== undefined ? round((m('alpha') as number) / DEG) : null,
@@ -364,16 +412,20 @@ export function reduceFlight(cols: Columns, ctx: ReduceContext, s: ReductionSett
 				specificExcessPower: round(r.specificExcessPower),
 				flightPathAngleDeg: round(r.flightPathAngleDeg)
 			},
+			uncertainty,
 			flags,
 			excluded: excluded.has(idx)
 		};
 	});
 	if (points.length === 0) warnings.push('no steady segment was found with these thresholds; widen the bands or shorten the minimum duration');
+	// Flight: the polar fits on the segment points; the lift curve too when the run records α.
+	const fits = fitReduction(points, aspectRatioOf(ref), { liftCurve: cols.has('alpha') });
+	if (points.length > 0) warnings.push(...fits.warnings.filter((w) => !w.startsWith('the aspect ratio')));
 	return {
-		settings: { ...s, reference: ref, segments: { minDuration, bands }, airspeed: airField, method: 'energy method (Kimberlin, Flight Testing of Fixed-Wing Aircraft, ch. 8)' },
+		settings: { ...s, reference: ref, segments: { minDuration, bands }, airspeed: airField, method: 'energy method (Kimberlin, Flight Testing of Fixed-Wing Aircraft, ch. 8)', uncertaintyApplied: unc },
 		points,
 		corrections: { applied: false, reason: 'flight run' },
-		fits: {},
+		fits,
 		conditions: conditionsOf(points),
 		warnings
 	};

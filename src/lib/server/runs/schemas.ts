@@ -125,6 +125,29 @@ export const reductionSettingsSchema = z.object({
 		})
 		.optional(),
 	thrustIncidenceDeg: finite.optional(),
+	/**
+	 * Standard (1σ) uncertainties overriding the defaults (src/lib/server/runs/fits.ts
+	 * DEFAULT_UNCERTAINTY) and the facility's calibration sheet: absolute balance
+	 * components in N and N·m, or fractions (of the run's largest load, of q, of S).
+	 */
+	uncertainty: z
+		.object({
+			normal: finite.min(0).optional(),
+			axial: finite.min(0).optional(),
+			pitching: finite.min(0).optional(),
+			balanceFractionOfMax: finite.min(0).optional(),
+			qFraction: finite.min(0).optional(),
+			areaFraction: finite.min(0).optional(),
+			alphaDeg: finite.min(0).optional(),
+			CL: finite.min(0).optional(),
+			CD: finite.min(0).optional(),
+			weightFraction: finite.min(0).optional(),
+			loadFactor: finite.min(0).optional(),
+			flightQFraction: finite.min(0).optional(),
+			thrustFraction: finite.min(0).optional()
+		})
+		.strict()
+		.optional(),
 	note: z.string().max(2000).optional()
 });
 export type ReductionSettingsInput = z.infer<typeof reductionSettingsSchema>;

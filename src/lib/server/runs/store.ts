@@ -98,7 +98,7 @@ export async function writeReduction(runId: number, out: ReductionOut, actor: Ac
 				reynolds: p.reynolds,
 				mach: p.mach,
 				values: p.values as Record<string, number | null>,
-				uncertainty: null,
+				uncertainty: p.uncertainty as unknown as Record<string, number> | null,
 				flags: p.flags,
 				excluded: p.excluded
 			})),
