@@ -61,6 +61,7 @@ export * from './planform';
 export * from './lifting-line';
 export * from './horseshoe';
 export * from './nonlinear-lifting-line';
+export * from './flap';
 export * from './axes';
 export * from './tunnel-corrections';
 export * from './flight-reduction';
