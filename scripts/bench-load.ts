@@ -1,0 +1,248 @@
+/**
+ * `npm run bench:load`: a bounded load run on loopback. 50 virtual users for
+ * 60 s against an instance of the production build on its own database
+ * (`spanline_bench`, recreated, migrated, seeded with the demo scenario and
+ * 12 imported tunnel runs): 25 browse campaign and run pages with a session
+ * cookie, 20 read the JSON API with a token, 5 upload tunnel runs. Prints
+ * requests/s, p50/p95/p99 latency and errors per kind of request, the server's
+ * memory (RSS) at start and end, and an idle baseline (one user, same
+ * requests) with the loaded/idle ratio.
+ *
+ * Options (environment): BENCH_USERS (50), BENCH_UPLOADERS (5), BENCH_SECONDS (60),
+ * BENCH_PORT (3121). Targets from issue 7: 0 errors, p95 of page and API
+ * reads < 200 ms, RSS growth < 20 %.
+ *
+ * The build is copied to .data/bench-build first, so an `npm test` that
+ * rebuilds build/ meanwhile cannot pull files from under the running server.
+ * Latency is measured in this process around each fetch (Node's undici
+ * client, keep-alive), so it includes the client's own overhead.
+ */
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { cpSync, existsSync, mkdirSync, openSync, closeSync, readFileSync, rmSync } from 'node:fs';
+import { join } from 'node:path';
+import { ensureEnv, projectRoot } from './lib/env.mjs';
+import { databaseUrl, ensurePostgres, recreateDatabase } from './lib/postgres.mjs';
+
+const USERS = Number(process.env.BENCH_USERS ?? 50);
+const UPLOADERS = Number(process.env.BENCH_UPLOADERS ?? 5);
+const SECONDS = Number(process.env.BENCH_SECONDS ?? 60);
+const PORT = Number(process.env.BENCH_PORT ?? 3121);
+const ORIGIN = `http://127.0.0.1:${PORT}`;
+const DB = 'spanline_bench';
+const MB = 1024 * 1024;
+
+type Kind = 'page' | 'api' | 'upload';
+
+function rss(pid: number): number {
+	const s = readFileSync(`/proc/${pid}/status`, 'utf8');
+	return Number(/^VmRSS:\s+(\d+) kB/m.exec(s)?.[1] ?? NaN) * 1024;
+}
+
+function pct(sorted: number[], p: number): number {
+	if (!sorted.length) return NaN;
+	return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
+}
+
+function tunnelCsv(seed: number, n = 41): string {
+	const lines = ['Run,Point,Alpha [deg],q [Pa],T [degC],Lift [N],Drag [N],PM [N m]'];
+	for (let i = 0; i < n; i++) {
+		const a = -8 + (20 * i) / (n - 1) + seed * 1e-7;
+		const L = 9.18 * (a + 2);
+		lines.push(`1,${i + 1},${a.toFixed(7)},600.0,20.0,${L.toFixed(5)},${(1.188 + 0.0003 * L * L).toFixed(5)},${(-0.324 - 0.0015 * L).toFixed(6)}`);
+	}
+	return lines.join('\n') + '\n';
+}
+
+function run(cmd: string, args: string[], env: NodeJS.ProcessEnv) {
+	const r = spawnSync(cmd, args, { cwd: projectRoot, env, encoding: 'utf8' });
+	if (r.status !== 0) throw new Error(`${cmd} ${args.join(' ')} failed:\n${r.stdout}${r.stderr}`);
+}
+
+async function waitHealthy(child: ChildProcess) {
+	for (const until = Date.now() + 30_000; ; ) {
+		if (child.exitCode !== null) throw new Error(`server exited with ${child.exitCode}`);
+		try {
+			if ((await fetch(`${ORIGIN}/api/v1/health`)).ok) return;
+		} catch {
+			/* not yet */
+		}
+		if (Date.now() > until) throw new Error('server did not become healthy in 30 s');
+		await new Promise((r) => setTimeout(r, 200));
+	}
+}
+
+interface Sample {
+	kind: Kind;
+	ms: number;
+	ok: boolean;
+}
+
+async function main() {
+	const fileEnv = ensureEnv();
+	await ensurePostgres({ log: () => {} });
+	if (!existsSync(join(projectRoot, 'build', 'index.js'))) {
+		console.log('no build/ yet: building (vite build)…');
+		run('npx', ['vite', 'build'], process.env);
+	}
+	const buildCopy = join(projectRoot, '.data', 'bench-build');
+	rmSync(buildCopy, { recursive: true, force: true });
+	cpSync(join(projectRoot, 'build'), buildCopy, { recursive: true });
+
+	console.log(`preparing database ${DB} (migrate, demo seed)…`);
+	await recreateDatabase(DB);
+	const env = {
+		...process.env,
+		DATABASE_URL: databaseUrl(DB),
+		AUTH_SECRET: fileEnv.AUTH_SECRET,
+		PORT: String(PORT),
+		HOST: '127.0.0.1',
+		ORIGIN,
+		BODY_SIZE_LIMIT: 'Infinity',
+		SPANLINE_ENV: 'bench'
+	};
+	run('npx', ['tsx', 'scripts/migrate.ts', 'up'], env);
+	run('npx', ['tsx', 'scripts/seed.ts'], env);
+
+	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
+	const logPath = join(projectRoot, '.data', 'test-logs', 'bench-load-server.log');
+	const fd = openSync(logPath, 'w');
+	const server = spawn('node', [buildCopy], { cwd: projectRoot, env, stdio: ['ignore', fd, fd] });
+	closeSync(fd);
+	const stop = () => {
+		if (server.exitCode === null) server.kill('SIGTERM');
+	};
+	process.on('exit', stop);
+	try {
+		await waitHealthy(server);
+
+		// A session (pages) and a token (API, uploads) of the demo test engineer.
+		const signIn = await fetch(`${ORIGIN}/signin?/password`, {
+			method: 'POST',
+			redirect: 'manual',
+			headers: { 'content-type': 'application/x-www-form-urlencoded', origin: ORIGIN, accept: 'text/html' },
+			body: new URLSearchParams({ email: 'test.engineer@spanline.test', password: 'demo-test-2026', next: '/' })
+		});
+		const cookie = signIn.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+		if (!cookie.includes('session-token')) throw new Error(`sign-in failed: ${signIn.status}`);
+		const tok = await fetch(`${ORIGIN}/api/v1/tokens`, { method: 'POST', headers: { cookie, origin: ORIGIN, 'content-type': 'application/json' }, body: JSON.stringify({ name: 'bench' }) });
+		const token = (await tok.json()).token as string;
+		const auth = { authorization: `Bearer ${token}` };
+
+		// A tunnel campaign of the demo seed with a configuration, and 12 imported runs to browse.
+		const campaigns = (await (await fetch(`${ORIGIN}/api/v1/campaigns`, { headers: auth })).json()).items as { id: number; kind: string }[];
+		const campaign = campaigns.find((c) => c.kind === 'tunnel') ?? campaigns[0];
+		const configs = (await (await fetch(`${ORIGIN}/api/v1/configurations?campaignId=${campaign.id}`, { headers: auth })).json()) as { items?: { id: number }[] };
+		const configurationId = configs.items?.[0]?.id;
+		const runIds: number[] = [];
+		const uploadPath = (n: number, name: string) =>
+			`${ORIGIN}/api/v1/campaigns/${campaign.id}/runs?${new URLSearchParams({ name, runNumber: `B-${n}`, ...(configurationId ? { configurationId: String(configurationId) } : {}) })}`;
+		for (let i = 0; i < 12; i++) {
+			const res = await fetch(uploadPath(i, `bench-${i}.csv`), { method: 'POST', body: tunnelCsv(i), headers: { ...auth, 'content-type': 'text/csv' } });
+			const body = await res.json();
+			if (res.status !== 201) throw new Error(`seeding run ${i}: ${res.status} ${JSON.stringify(body).slice(0, 300)}`);
+			runIds.push(body.run.id);
+		}
+
+		const pages = ['/', `/campaigns/${campaign.id}`, ...runIds.slice(0, 4).map((id) => `/runs/${id}`), '/configurations'];
+		const apis = [
+			'/api/v1/campaigns',
+			`/api/v1/campaigns/${campaign.id}`,
+			`/api/v1/campaigns/${campaign.id}/runs`,
+			`/api/v1/campaigns/${campaign.id}/summary`,
+			...runIds.slice(0, 6).flatMap((id) => [`/api/v1/runs/${id}`, `/api/v1/runs/${id}/points`])
+		];
+		// Check every path once: a bench over broken routes would measure error pages.
+		for (const p of pages) {
+			const r = await fetch(ORIGIN + p, { headers: { cookie, accept: 'text/html' }, redirect: 'manual' });
+			await r.arrayBuffer();
+			if (r.status !== 200) throw new Error(`page ${p}: HTTP ${r.status}`);
+		}
+		for (const p of apis) {
+			const r = await fetch(ORIGIN + p, { headers: auth });
+			await r.arrayBuffer();
+			if (r.status !== 200) throw new Error(`API ${p}: HTTP ${r.status}`);
+		}
+
+		let uploadSeq = 1000;
+		const once = async (kind: Kind, i: number): Promise<Sample> => {
+			const t0 = performance.now();
+			try {
+				let res: Response;
+				if (kind === 'page') res = await fetch(ORIGIN + pages[i % pages.length], { headers: { cookie, accept: 'text/html' }, redirect: 'manual' });
+				else if (kind === 'api') res = await fetch(ORIGIN + apis[i % apis.length], { headers: auth });
+				else {
+					const n = uploadSeq++;
+					res = await fetch(uploadPath(n, `load-${n}.csv`), { method: 'POST', body: tunnelCsv(n), headers: { ...auth, 'content-type': 'text/csv' } });
+				}
+				await res.arrayBuffer();
+				return { kind, ms: performance.now() - t0, ok: kind === 'upload' ? res.status === 201 : res.status === 200 };
+			} catch {
+				return { kind, ms: performance.now() - t0, ok: false };
+			}
+		};
+
+		// Idle baseline: one user, every page and API path ten times.
+		const baseline: Sample[] = [];
+		for (let r = 0; r < 10; r++) {
+			for (let i = 0; i < pages.length; i++) baseline.push(await once('page', i));
+			for (let i = 0; i < apis.length; i++) baseline.push(await once('api', i));
+		}
+		for (let r = 0; r < 5; r++) baseline.push(await once('upload', 0));
+
+		const rssStart = rss(server.pid!);
+		console.log(`load: ${USERS} users (${UPLOADERS} uploading) for ${SECONDS} s on ${ORIGIN}; server RSS at start ${(rssStart / MB).toFixed(1)} MB`);
+		const samples: Sample[] = [];
+		const until = performance.now() + SECONDS * 1000;
+		const readers = USERS - UPLOADERS;
+		const user = async (u: number) => {
+			const kind: Kind = u < UPLOADERS ? 'upload' : u - UPLOADERS < Math.ceil(readers / 2) ? 'page' : 'api';
+			for (let i = u; performance.now() < until; i++) samples.push(await once(kind, i));
+		};
+		const t0 = performance.now();
+		let peak = rssStart;
+		const sampler = setInterval(() => (peak = Math.max(peak, rss(server.pid!))), 500);
+		await Promise.all(Array.from({ length: USERS }, (_, u) => user(u)));
+		clearInterval(sampler);
+		const elapsed = (performance.now() - t0) / 1000;
+		const rssEnd = rss(server.pid!);
+
+		const stats = (list: Sample[]) => {
+			const ms = list.map((s) => s.ms).sort((a, b) => a - b);
+			return { n: list.length, errors: list.filter((s) => !s.ok).length, p50: pct(ms, 50), p95: pct(ms, 95), p99: pct(ms, 99) };
+		};
+		const row = (label: string, s: ReturnType<typeof stats>, rate?: number) =>
+			`${label.padEnd(22)} ${String(s.n).padStart(7)} ${rate === undefined ? '       ' : rate.toFixed(1).padStart(7)} ${s.p50.toFixed(1).padStart(8)} ${s.p95.toFixed(1).padStart(8)} ${s.p99.toFixed(1).padStart(8)} ${String(s.errors).padStart(6)}`;
+		console.log(`\n${'requests'.padEnd(22)} ${'count'.padStart(7)} ${'req/s'.padStart(7)} ${'p50 ms'.padStart(8)} ${'p95 ms'.padStart(8)} ${'p99 ms'.padStart(8)} ${'errors'.padStart(6)}`);
+		const loaded: Record<string, ReturnType<typeof stats>> = {};
+		for (const kind of ['page', 'api', 'upload'] as Kind[]) {
+			const s = stats(samples.filter((x) => x.kind === kind));
+			loaded[kind] = s;
+			console.log(row(`${kind} (under load)`, s, s.n / elapsed));
+		}
+		const all = stats(samples);
+		console.log(row('all (under load)', all, all.n / elapsed));
+		const base: Record<string, ReturnType<typeof stats>> = {};
+		for (const kind of ['page', 'api', 'upload'] as Kind[]) {
+			base[kind] = stats(baseline.filter((x) => x.kind === kind));
+			console.log(row(`${kind} (idle baseline)`, base[kind]));
+		}
+		console.log(`\nloaded/idle p95 ratio: page ${(loaded.page.p95 / base.page.p95).toFixed(1)}×, api ${(loaded.api.p95 / base.api.p95).toFixed(1)}×, upload ${(loaded.upload.p95 / base.upload.p95).toFixed(1)}×`);
+		const growth = (rssEnd - rssStart) / rssStart;
+		console.log(`server RSS: start ${(rssStart / MB).toFixed(1)} MB, end ${(rssEnd / MB).toFixed(1)} MB (${(growth * 100).toFixed(1)} %), peak ${(peak / MB).toFixed(1)} MB`);
+		const targets = [
+			['0 errors', all.errors === 0],
+			['p95 page reads < 200 ms', loaded.page.p95 < 200],
+			['p95 API reads < 200 ms', loaded.api.p95 < 200],
+			['RSS growth < 20 %', growth < 0.2]
+		] as const;
+		console.log(`targets: ${targets.map(([t, ok]) => `${ok ? 'met' : 'MISSED'}: ${t}`).join('; ')}`);
+		process.exitCode = targets.every(([, ok]) => ok) ? 0 : 1;
+	} finally {
+		stop();
+	}
+}
+
+main().catch((err) => {
+	console.error(`bench:load: ${err instanceof Error ? err.message : err}`);
+	process.exit(1);
+});
