@@ -6,6 +6,7 @@
 import { QueryTypes } from 'sequelize';
 import { can, type Role } from '../auth/roles';
 import * as audit from '../audit';
+import * as notifications from '$lib/server/notifications';
 import { getModels, getSequelize, type RunState } from '../db';
 import { openCsv } from '../imports/csv';
 import { ImportError } from '../imports/errors';
@@ -325,6 +326,8 @@ export async function changeState(actor: Actor, runId: number, to: RunState, not
 			{ transaction: t }
 		);
 	});
+	// After the commit: tell the aerodynamicists (never throws; mail failures stay in the outbox).
+	if (to === 'reduced') void notifications.notifyRunReduced(runId);
 }
 
 /** The run's original file: metadata for the download route. */
