@@ -14,9 +14,11 @@ import { getModels, getSequelize, type Configuration, type WingGeometry } from '
 import * as audit from '$lib/server/audit';
 import type { ErrorDetail } from '$lib/server/http';
 import { planformGeometry, validateWing, type PlanformGeometry, type Wing } from '$lib/aero/planform';
-import { ConfigurationInputSchema, DuplicateSchema, type ConfigurationInput } from './schemas';
+import { flapEffectiveness } from '$lib/aero/flap';
+import type { SectionTable } from '$lib/aero/nonlinear-lifting-line';
+import { ConfigurationInputSchema, DuplicateSchema, type ConfigurationInput, type NamedSectionTable, type SectionTableData } from './schemas';
 
-export { ConfigurationInputSchema, DuplicateSchema, type ConfigurationInput } from './schemas';
+export { ConfigurationInputSchema, DuplicateSchema, SectionTableDataSchema, NamedSectionTableSchema, MAX_TABLE_POINTS, type ConfigurationInput, type NamedSectionTable, type SectionTableData } from './schemas';
 
 export interface Actor {
 	id: string;
@@ -42,6 +44,9 @@ export class ConfigurationError extends Error {
 export interface StoredGeometry extends WingGeometry {
 	estimatedCD0?: number | null;
 	segments: (WingGeometry['segments'][number] & { side?: 'both' | 'left' | 'right' })[];
+	stations: (WingGeometry['stations'][number] & { sectionTable?: string | SectionTableData })[];
+	/** Section cl(α) tables shared by name between stations. */
+	sectionTables?: NamedSectionTable[];
 }
 
 export interface ConfigurationDto {
@@ -65,21 +70,42 @@ export interface ConfigurationDto {
 }
 
 /**
- * The aero core's wing for a stored geometry. A segment without a stated
- * Δα_L0 contributes nothing and is reported in `warnings` (the flap
- * effectiveness for a deflection is a section-data question, not guessed here).
+ * Δα_L0 of a segment: the stated value, else, for a flap or aileron with a
+ * chord ratio, thin-airfoil flap effectiveness −τ·δf ($lib/aero/flap), else
+ * none (0, with a warning).
+ */
+export function segmentDeltaAlphaZeroLift(g: StoredGeometry['segments'][number], i: number): { value: number; warning: string | null; fromFlapTheory: boolean } {
+	if (g.deltaAlphaZeroLiftDeg !== undefined && g.deltaAlphaZeroLiftDeg !== null) return { value: g.deltaAlphaZeroLiftDeg, warning: null, fromFlapTheory: false };
+	if (g.kind !== 'other' && typeof g.chordFraction === 'number' && typeof g.deflectionDeg === 'number') {
+		try {
+			const f = flapEffectiveness(g.chordFraction, g.deflectionDeg);
+			return {
+				value: f.deltaAlphaZeroLiftDeg,
+				warning: `segment ${i} (${g.name}): Δα_L0 = ${f.deltaAlphaZeroLiftDeg.toFixed(3)}° from thin-airfoil flap effectiveness (cf/c ${g.chordFraction}, δf ${g.deflectionDeg}°, τ ${f.tau.toFixed(3)}); section data would be better`,
+				fromFlapTheory: true
+			};
+		} catch (err) {
+			return { value: 0, warning: `segment ${i} (${g.name}): ${err instanceof Error ? err.message : String(err)}, so the solver ignores it`, fromFlapTheory: false };
+		}
+	}
+	return { value: 0, warning: `segment ${i} (${g.name}): no Δα_L0 and no flap chord ratio given, so the solver ignores it`, fromFlapTheory: false };
+}
+
+/**
+ * The aero core's wing for a stored geometry. A segment's Δα_L0 is the stated
+ * value, else thin-airfoil flap effectiveness from its chord ratio and
+ * deflection (reported in `warnings`), else nothing (also reported).
  */
 export function toWing(geometry: StoredGeometry): { wing: Wing; warnings: string[] } {
 	const warnings: string[] = [];
 	const segments = (geometry.segments ?? []).map((g, i) => {
-		if (g.deltaAlphaZeroLiftDeg === undefined || g.deltaAlphaZeroLiftDeg === null) {
-			warnings.push(`segment ${i} (${g.name}): no Δα_L0 given, so the solver ignores it`);
-		}
+		const d = segmentDeltaAlphaZeroLift(g, i);
+		if (d.warning) warnings.push(d.warning);
 		return {
 			name: g.name,
 			etaStart: g.etaStart,
 			etaEnd: g.etaEnd,
-			deltaAlphaZeroLiftDeg: g.deltaAlphaZeroLiftDeg ?? 0,
+			deltaAlphaZeroLiftDeg: d.value,
 			side: g.side ?? 'both'
 		};
 	});
@@ -97,6 +123,30 @@ export function toWing(geometry: StoredGeometry): { wing: Wing; warnings: string
 		},
 		warnings
 	};
+}
+
+/**
+ * The section tables of a stored geometry for the nonlinear lifting line, one
+ * per station at the station's η, or null when no station has one. Stations
+ * without a table get the straight line cl = a₀(α − α_L0) of their own
+ * section data over ±90° (so a wing may mix tables and linear sections); the
+ * solver blends tables linearly in η between stations.
+ */
+export function sectionTablesOf(geometry: StoredGeometry): { sections: SectionTable[] | null; warnings: string[] } {
+	const shared = new Map((geometry.sectionTables ?? []).map((t) => [t.name, t]));
+	const warnings: string[] = [];
+	const own = geometry.stations.map((s) => (typeof s.sectionTable === 'string' ? shared.get(s.sectionTable) ?? null : s.sectionTable ?? null));
+	if (!own.some(Boolean)) return { sections: null, warnings };
+	const linearFrom: number[] = [];
+	const sections = geometry.stations.map((s, i): SectionTable => {
+		const t = own[i];
+		if (t) return { eta: s.eta, alphaDeg: [...t.alphaDeg], cl: [...t.cl], ...(t.cd && own.every((o) => !o || o.cd) ? { cd: [...t.cd] } : {}) };
+		linearFrom.push(i);
+		const rad = Math.PI / 180;
+		return { eta: s.eta, alphaDeg: [-90, 90], cl: [s.a0 * (-90 - s.alphaZeroLiftDeg) * rad, s.a0 * (90 - s.alphaZeroLiftDeg) * rad] };
+	});
+	if (linearFrom.length) warnings.push(`station${linearFrom.length > 1 ? 's' : ''} ${linearFrom.join(', ')}: no section table, linear section cl = a₀(α − α_L0) used (no stall there)`);
+	return { sections, warnings };
 }
 
 function toDto(row: Configuration, latestVersion: number): ConfigurationDto {
@@ -206,7 +256,15 @@ export function parseInput(raw: unknown): ConfigurationInput {
 function geometryOf(input: ConfigurationInput): StoredGeometry {
 	return {
 		span: input.span,
-		stations: input.stations.map((s) => ({ eta: s.eta, chord: s.chord, twistDeg: s.twistDeg, a0: s.a0, alphaZeroLiftDeg: s.alphaZeroLiftDeg })),
+		stations: input.stations.map((s) => ({
+			eta: s.eta,
+			chord: s.chord,
+			twistDeg: s.twistDeg,
+			a0: s.a0,
+			alphaZeroLiftDeg: s.alphaZeroLiftDeg,
+			...(s.sectionTable !== undefined ? { sectionTable: s.sectionTable } : {})
+		})),
+		...(input.sectionTables.length ? { sectionTables: input.sectionTables } : {}),
 		segments: input.segments.map((g) => ({
 			name: g.name,
 			kind: g.kind,
@@ -230,6 +288,7 @@ export function inputOf(dto: ConfigurationDto): ConfigurationInput {
 		span: g.span,
 		stations: g.stations.map((s) => ({ ...s })),
 		segments: (g.segments ?? []).map((s) => ({ ...s, side: s.side ?? 'both' })),
+		sectionTables: (g.sectionTables ?? []).map((t) => ({ ...t })),
 		refArea: dto.refArea,
 		refSpan: dto.refSpan,
 		refChord: dto.refChord,

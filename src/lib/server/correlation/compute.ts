@@ -12,18 +12,26 @@
  * Steele, 3rd ed., ch. 3). Points are treated as uncorrelated, which makes
  * the propagated part a conservative companion of the fit interval.
  */
-import { liftCurve, type LiftingLineOptions } from '$lib/aero/lifting-line';
+import { liftCurve, DEFAULT_TERMS, type LiftingLineOptions } from '$lib/aero/lifting-line';
+import { solveNonlinearLiftingLine, sweepToStall, SWEEP_ACCEPT_RESIDUAL, type SectionTable } from '$lib/aero/nonlinear-lifting-line';
 import { fitLiftCurve, fitParabolicPolar, studentTQuantile, CONFIDENCE } from '$lib/aero/polar-fit';
 import type { Wing } from '$lib/aero/planform';
 import { DELTA_QUANTITIES, type DeltaQuantity, type DeltaSettings, type ToleranceSet } from './quantities';
 
 export const SOLVER_LINEAR = 'lifting-line-glauert';
+/** Nonlinear lifting line over section cl(α) tables (used when a configuration has tables). */
+export const SOLVER_NONLINEAR = 'lifting-line-nonlinear';
+export const SOLVERS = [SOLVER_LINEAR, SOLVER_NONLINEAR] as const;
+/** α step of the stall sweep that finds the predicted CLmax, deg. */
+const STALL_SWEEP_STEP_DEG = 0.5;
+/** The stall sweep stops here at the latest, deg. */
+const STALL_SWEEP_END_DEG = 40;
 /** Half-width of the plotted prediction curve beyond the measured α range, deg, and its step. */
 const CURVE_MARGIN_DEG = 2;
 const CURVE_STEP_DEG = 0.5;
 
 export interface SolverSettings {
-	solver: typeof SOLVER_LINEAR;
+	solver: (typeof SOLVERS)[number];
 	terms?: number;
 	symmetry?: LiftingLineOptions['symmetry'];
 }
@@ -46,6 +54,8 @@ export interface PredictionInputs {
 	clRef: number;
 	reductionId: number;
 	warnings: string[];
+	/** Section tables at the stations' η (nonlinear solver only; see configurations.sectionTablesOf). */
+	sections?: SectionTable[] | null;
 }
 
 export interface PredictedPoint {
@@ -66,8 +76,16 @@ export interface PredictionOutputs {
 	curve: PredictedPoint[];
 	atAlphaRef: PredictedPoint;
 	atClRef: PredictedPoint;
-	/** Stall is not modelled by the linear solver. */
+	/** Predicted CLmax on refArea (nonlinear solver with a bracketed peak); null for the linear solver. */
 	CLmax: number | null;
+	/** Stall sweep of the nonlinear solver (absent for the linear one). */
+	stall?: {
+		CLmax: number | null;
+		alphaAtCLmaxDeg: number | null;
+		peakFound: boolean;
+		stallOnset: { alphaDeg: number; eta: number } | null;
+		notes: string[];
+	};
 	warnings: string[];
 }
 
@@ -78,13 +96,14 @@ export function jsonSafe<T>(value: T): T {
 
 /** The prediction for stored inputs: deterministic, so re-running stored inputs reproduces stored outputs. */
 export function computePrediction(inputs: PredictionInputs, settings: SolverSettings): PredictionOutputs {
-	if (settings.solver !== SOLVER_LINEAR) throw new Error(`prediction: unknown solver '${String(settings.solver)}'`);
+	if (!(SOLVERS as readonly string[]).includes(settings.solver)) throw new Error(`prediction: unknown solver '${String(settings.solver)}'`);
 	if (!(inputs.refArea > 0)) throw new Error(`prediction: refArea must be > 0 (got ${inputs.refArea})`);
-	const opts: LiftingLineOptions = { terms: settings.terms, symmetry: settings.symmetry, mach: inputs.mach };
 	const lo = Math.min(...inputs.alphasDeg) - CURVE_MARGIN_DEG;
 	const hi = Math.max(...inputs.alphasDeg) + CURVE_MARGIN_DEG;
 	const grid: number[] = [];
 	for (let a = Math.floor(lo / CURVE_STEP_DEG) * CURVE_STEP_DEG; a <= hi + 1e-9; a += CURVE_STEP_DEG) grid.push(Math.round(a * 1000) / 1000);
+	if (settings.solver === SOLVER_NONLINEAR) return nonlinearPrediction(inputs, settings, grid);
+	const opts: LiftingLineOptions = { terms: settings.terms, symmetry: settings.symmetry, mach: inputs.mach };
 	const main = liftCurve(inputs.wing, [...inputs.alphasDeg, ...grid, inputs.alphaRefDeg], opts);
 	const ratio = main.area / inputs.refArea;
 	const slopePerDeg = main.liftSlope * (Math.PI / 180) * ratio;
@@ -113,6 +132,108 @@ export function computePrediction(inputs: PredictionInputs, settings: SolverSett
 		atClRef,
 		CLmax: null,
 		warnings: [...inputs.warnings, ...main.warnings, 'CLmax is not predicted: the linear lifting line has no stall (section cl(α) tables are needed).']
+	});
+}
+
+/**
+ * The nonlinear lifting line at every α (measured points, the plotted grid,
+ * α_ref), CL_ref found on the computed curve, and a stall sweep for CLmax.
+ * Compressibility: the section cl of every table is scaled by the
+ * Prandtl–Glauert factor 1/β, as the linear solver scales a₀ (so that with
+ * linear tables both solvers agree); through stall that is an approximation.
+ * Points the solver cannot reach (beyond a table, no convergence past stall)
+ * are null and reported.
+ */
+function nonlinearPrediction(inputs: PredictionInputs, settings: SolverSettings, grid: number[]): PredictionOutputs {
+	if (!inputs.sections || inputs.sections.length === 0) throw new Error('prediction: the nonlinear solver needs section tables (the configuration has none)');
+	const m = inputs.mach ?? 0;
+	if (!(m >= 0 && m < 1)) throw new Error(`prediction: mach must be in [0, 1) (got ${m})`);
+	const pg = 1 / Math.sqrt(1 - m * m);
+	const sections: SectionTable[] = inputs.sections.map((t) => ({ ...t, cl: Array.from(t.cl, (v) => v * pg) }));
+	// Same number of terms as the linear solver by default, so that both agree for linear tables.
+	const opts = { terms: settings.terms ?? DEFAULT_TERMS, symmetry: settings.symmetry };
+	const warnings: string[] = [...inputs.warnings];
+	if (m > 0.3) warnings.push(`Mach ${m.toFixed(2)}: Prandtl–Glauert scaling of the section tables is a rough correction.`);
+	const cache = new Map<number, { CL: number; CDi: number; alphaDeg: number } | null>();
+	const failures: string[] = [];
+	let area = 0;
+	let aspectRatio = 0;
+	const solve = (a: number) => {
+		if (cache.has(a)) return cache.get(a)!;
+		let r: { CL: number; CDi: number; alphaDeg: number } | null = null;
+		try {
+			const s = solveNonlinearLiftingLine(inputs.wing, sections, { alphaDeg: a }, opts);
+			area = s.area;
+			aspectRatio = s.aspectRatio;
+			if (s.converged || s.residual <= SWEEP_ACCEPT_RESIDUAL) r = { alphaDeg: a, CL: s.CL, CDi: s.CDi };
+			else failures.push(`α = ${a}°: no convergence (residual ${s.residual.toExponential(2)})`);
+		} catch (err) {
+			failures.push(`α = ${a}°: ${err instanceof Error ? err.message : String(err)}`);
+		}
+		cache.set(a, r);
+		return r;
+	};
+	const raw = inputs.alphasDeg.map(solve);
+	const rawCurve = grid.map(solve);
+	const rawRef = solve(inputs.alphaRefDeg);
+	if (!area) throw new Error(`prediction: the nonlinear solver reached no α (${failures.slice(0, 3).join('; ')})`);
+	const ratio = area / inputs.refArea;
+	const cd0 = inputs.profileDragCD0;
+	const pt = (p: { alphaDeg: number; CL: number; CDi: number } | null, alphaDeg: number): PredictedPoint =>
+		p === null
+			? { alphaDeg, CL: Number.NaN, CDi: Number.NaN, CD: null }
+			: { alphaDeg: p.alphaDeg, CL: p.CL * ratio, CDi: p.CDi * ratio, CD: cd0 === null ? null : cd0 + p.CDi * ratio };
+	const points = raw.map((p, i) => pt(p, inputs.alphasDeg[i]));
+	const curve = rawCurve.map((p, i) => pt(p, grid[i]));
+	// Lift slope and α_L0: least squares through the solved grid below the stall onset (exact for linear tables).
+	const sweep = (() => {
+		try {
+			return sweepToStall(inputs.wing, sections, { ...opts, alphaStartDeg: 0, alphaStepDeg: STALL_SWEEP_STEP_DEG, alphaEndDeg: STALL_SWEEP_END_DEG });
+		} catch (err) {
+			warnings.push(`stall sweep failed: ${err instanceof Error ? err.message : String(err)}`);
+			return null;
+		}
+	})();
+	const onset = sweep?.stallOnset?.alphaDeg ?? Infinity;
+	const lin = curve.filter((p) => Number.isFinite(p.CL) && p.alphaDeg < onset);
+	const fitPts = lin.length >= 2 ? lin : curve.filter((p) => Number.isFinite(p.CL));
+	if (fitPts.length < 2) throw new Error(`prediction: the nonlinear solver reached fewer than 2 α of the plotted range (${failures.slice(0, 3).join('; ')})`);
+	const xbar = fitPts.reduce((t, p) => t + p.alphaDeg, 0) / fitPts.length;
+	const ybar = fitPts.reduce((t, p) => t + p.CL, 0) / fitPts.length;
+	const sxx = fitPts.reduce((t, p) => t + (p.alphaDeg - xbar) ** 2, 0);
+	const slopePerDeg = fitPts.reduce((t, p) => t + (p.alphaDeg - xbar) * (p.CL - ybar), 0) / sxx;
+	const alphaZeroLiftDeg = xbar - ybar / slopePerDeg;
+	// α at CL_ref: the linear estimate, refined by one secant step on the solver.
+	let atClRef: PredictedPoint = { alphaDeg: Number.NaN, CL: Number.NaN, CDi: Number.NaN, CD: null };
+	const a0 = alphaZeroLiftDeg + inputs.clRef / slopePerDeg;
+	const p0 = solve(Math.round(a0 * 1e9) / 1e9);
+	if (p0) {
+		const cl0 = p0.CL * ratio;
+		const a1 = a0 + (inputs.clRef - cl0) / slopePerDeg;
+		const p1 = Math.abs(a1 - a0) > 1e-9 ? solve(Math.round(a1 * 1e9) / 1e9) : p0;
+		atClRef = pt(p1 ?? p0, p1 ? p1.alphaDeg : p0.alphaDeg);
+	}
+	if (failures.length) warnings.push(`nonlinear solver: ${failures.length} angle(s) not solved (${failures.slice(0, 3).join('; ')}${failures.length > 3 ? '; …' : ''})`);
+	const CLmax = sweep && sweep.peakFound ? sweep.CLmax * ratio : null;
+	if (sweep && !sweep.peakFound) warnings.push('CLmax is not predicted: the stall sweep ended before the lift fell (section tables end too early or have no stall).');
+	return jsonSafe({
+		liftSlopePerDeg: slopePerDeg,
+		alphaZeroLiftDeg,
+		areaRatio: ratio,
+		aspectRatio,
+		points,
+		curve,
+		atAlphaRef: pt(rawRef, inputs.alphaRefDeg),
+		atClRef,
+		CLmax,
+		stall: {
+			CLmax,
+			alphaAtCLmaxDeg: sweep && sweep.peakFound ? sweep.alphaAtCLmaxDeg : null,
+			peakFound: sweep?.peakFound ?? false,
+			stallOnset: sweep?.stallOnset ? { alphaDeg: sweep.stallOnset.alphaDeg, eta: sweep.stallOnset.eta } : null,
+			notes: sweep?.notes ?? []
+		},
+		warnings
 	});
 }
 
@@ -219,12 +340,18 @@ export function computeDeltas(measured: MeasuredPoint[], prediction: PredictionO
 	push('clAtAlpha', clAtRef, prediction.atAlphaRef.CL, tq * seAtRef, rss(propagate(wRef, uCL), m * uAlpha));
 
 	// ΔCLmax: only when stall was reached and the prediction models it.
-	const clmaxNote = lift.CLmaxAtEdge ? 'stall not reached in the measured range' : prediction.CLmax === null ? 'the linear prediction has no CLmax' : undefined;
+	const clmaxNote = lift.CLmaxAtEdge
+		? 'stall not reached in the measured range'
+		: prediction.CLmax === null
+			? prediction.stall
+				? 'the predicted stall was not bracketed (section tables end before the lift falls)'
+				: 'the linear prediction has no CLmax (give the stations section cl(α) tables)'
+			: undefined;
 	const atMax = measured.find((p) => p.alphaDeg === lift.alphaAtCLmaxDeg && p.CL === lift.CLmax);
 	push('clMax', lift.CLmaxAtEdge ? null : lift.CLmax, prediction.CLmax, 0, atMax?.uCL ?? 0, 1, clmaxNote);
 
 	// Polar quantities over the linear range, where both measured and predicted CD exist.
-	const linCd = lin.filter((i) => measured[i].CD !== null);
+	const linCd = lin.filter((i) => measured[i].CD !== null && Number.isFinite(prediction.points[i].CL) && Number.isFinite(prediction.points[i].CDi));
 	if (linCd.length >= 3) {
 		const cl = linCd.map((i) => measured[i].CL);
 		const cd = linCd.map((i) => measured[i].CD as number);
@@ -248,7 +375,7 @@ export function computeDeltas(measured: MeasuredPoint[], prediction: PredictionO
 	}
 
 	// RMS ΔCL over the linear range; noise of the stated size alone would give about RMS(U).
-	const dcl = lin.map((i) => CL[i] - prediction.points[i].CL);
+	const dcl = lin.filter((i) => Number.isFinite(prediction.points[i].CL)).map((i) => CL[i] - prediction.points[i].CL);
 	const rms = Math.sqrt(dcl.reduce((t, v) => t + v * v, 0) / dcl.length);
 	const uRms = Math.sqrt(uCL.reduce((t, v) => t + v * v, 0) / uCL.length);
 	push('rmsCl', rms, 0, 0, uRms, 1, undefined, rms);

@@ -22,6 +22,8 @@ import {
 	computePrediction,
 	jsonSafe,
 	SOLVER_LINEAR,
+	SOLVER_NONLINEAR,
+	SOLVERS,
 	type DeltaResult,
 	type MeasuredPoint,
 	type PredictionInputs,
@@ -31,7 +33,7 @@ import {
 import { DEFAULT_DELTA_SETTINGS, DELTA_QUANTITIES, DELTA_STATE_SQL, deltaState, resolveTolerances, type DeltaSettings, type DeltaState } from './quantities';
 
 export * from './quantities';
-export { computePrediction, computeDeltas, jsonSafe, SOLVER_LINEAR } from './compute';
+export { computePrediction, computeDeltas, jsonSafe, SOLVER_LINEAR, SOLVER_NONLINEAR, SOLVERS } from './compute';
 export type { PredictionInputs, PredictionOutputs, SolverSettings, DeltaResult, MeasuredPoint } from './compute';
 
 export type Context = configurations.Context;
@@ -163,6 +165,7 @@ export async function predictRun(ctx: Context, runId: number, req: PredictReques
 			throw err;
 		}
 		const { wing, warnings } = configurations.toWing(config.geometry);
+		const tables = configurations.sectionTablesOf(config.geometry);
 		const refArea = config.refArea ?? config.planform?.area;
 		if (!refArea) throw new CorrelationError('invalid', `Configuration ${config.name} v${config.version} is not a valid wing.`);
 		const measured = used.map(toMeasured);
@@ -170,10 +173,15 @@ export async function predictRun(ctx: Context, runId: number, req: PredictReques
 		const res = used.map((p) => num(p.reynolds)).filter((v): v is number => v !== null);
 		const cond = run.conditions ?? {};
 		const deltaSettings: DeltaSettings = { ...DEFAULT_DELTA_SETTINGS, ...(req.deltas ?? {}) };
-		const settings: SolverSettings = { solver: SOLVER_LINEAR, ...(req.solver?.terms ? { terms: req.solver.terms } : {}), ...(req.solver?.symmetry ? { symmetry: req.solver.symmetry } : {}) };
-		if (req.solver?.solver && req.solver.solver !== SOLVER_LINEAR) {
-			throw new CorrelationError('invalid', `Unknown solver '${req.solver.solver}' (available: ${SOLVER_LINEAR}).`, [{ field: 'solver.solver', message: 'unknown solver' }]);
+		// Linear, or nonlinear when the configuration's stations carry section tables (unless a solver is asked for).
+		const solverName = req.solver?.solver ?? (tables.sections ? SOLVER_NONLINEAR : SOLVER_LINEAR);
+		if (!(SOLVERS as readonly string[]).includes(solverName)) {
+			throw new CorrelationError('invalid', `Unknown solver '${solverName}' (available: ${SOLVERS.join(', ')}).`, [{ field: 'solver.solver', message: 'unknown solver' }]);
 		}
+		if (solverName === SOLVER_NONLINEAR && !tables.sections) {
+			throw new CorrelationError('invalid', `Configuration ${config.name} v${config.version} has no section cl(α) tables: the nonlinear solver needs them.`, [{ field: 'solver.solver', message: 'no section tables' }]);
+		}
+		const settings: SolverSettings = { solver: solverName as SolverSettings['solver'], ...(req.solver?.terms ? { terms: req.solver.terms } : {}), ...(req.solver?.symmetry ? { symmetry: req.solver.symmetry } : {}) };
 		// The run's representative Mach and Reynolds numbers: the median of its points (nominally constant in a sweep).
 		const mean = (v: number[]) => {
 			const s = [...v].sort((a, b) => a - b);
@@ -191,7 +199,8 @@ export async function predictRun(ctx: Context, runId: number, req: PredictReques
 			alphaRefDeg: deltaSettings.alphaRefDeg,
 			clRef: deltaSettings.clRef,
 			reductionId: Number(reduction.id),
-			warnings
+			warnings: settings.solver === SOLVER_NONLINEAR ? [...warnings, ...tables.warnings] : warnings,
+			...(settings.solver === SOLVER_NONLINEAR ? { sections: tables.sections } : {})
 		});
 		let outputs: PredictionOutputs;
 		let deltas: DeltaResult[];
