@@ -9,7 +9,7 @@
  * requests) with the loaded/idle ratio.
  *
  * Options (environment): BENCH_USERS (50), BENCH_UPLOADERS (5), BENCH_SECONDS (60),
- * BENCH_PORT (3121). Targets from issue 7: 0 errors, p95 of page and API
+ * BENCH_WARMUP_SECONDS (10, same load, not counted), BENCH_PORT (3121). Targets from issue 7: 0 errors, p95 of page and API
  * reads < 200 ms, RSS growth < 20 %.
  *
  * The build is copied to .data/bench-build first, so an `npm test` that
@@ -27,6 +27,7 @@ const USERS = Number(process.env.BENCH_USERS ?? 50);
 const UPLOADERS = Number(process.env.BENCH_UPLOADERS ?? 5);
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 60);
 const PORT = Number(process.env.BENCH_PORT ?? 3121);
+const WARMUP = Number(process.env.BENCH_WARMUP_SECONDS ?? 10);
 const ORIGIN = `http://127.0.0.1:${PORT}`;
 const DB = 'spanline_bench';
 const MB = 1024 * 1024;
@@ -73,8 +74,15 @@ async function waitHealthy(child: ChildProcess) {
 
 interface Sample {
 	kind: Kind;
+	path: string;
 	ms: number;
 	ok: boolean;
+}
+
+/** CPU seconds (user + system) a process has used, from /proc/<pid>/stat (clock ticks of 1/100 s on Linux). */
+function cpuSeconds(pid: number): number {
+	const f = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+	return (Number(f[11]) + Number(f[12])) / 100;
 }
 
 async function main() {
@@ -166,18 +174,19 @@ async function main() {
 		let uploadSeq = 1000;
 		const once = async (kind: Kind, i: number): Promise<Sample> => {
 			const t0 = performance.now();
+			const path = kind === 'page' ? pages[i % pages.length] : kind === 'api' ? apis[i % apis.length] : `/api/v1/campaigns/${campaign.id}/runs (POST)`;
 			try {
 				let res: Response;
-				if (kind === 'page') res = await fetch(ORIGIN + pages[i % pages.length], { headers: { cookie, accept: 'text/html' }, redirect: 'manual' });
-				else if (kind === 'api') res = await fetch(ORIGIN + apis[i % apis.length], { headers: auth });
+				if (kind === 'page') res = await fetch(ORIGIN + path, { headers: { cookie, accept: 'text/html' }, redirect: 'manual' });
+				else if (kind === 'api') res = await fetch(ORIGIN + path, { headers: auth });
 				else {
 					const n = uploadSeq++;
 					res = await fetch(uploadPath(n, `load-${n}.csv`), { method: 'POST', body: tunnelCsv(n), headers: { ...auth, 'content-type': 'text/csv' } });
 				}
 				await res.arrayBuffer();
-				return { kind, ms: performance.now() - t0, ok: kind === 'upload' ? res.status === 201 : res.status === 200 };
+				return { kind, path, ms: performance.now() - t0, ok: kind === 'upload' ? res.status === 201 : res.status === 200 };
 			} catch {
-				return { kind, ms: performance.now() - t0, ok: false };
+				return { kind, path, ms: performance.now() - t0, ok: false };
 			}
 		};
 
@@ -189,21 +198,36 @@ async function main() {
 		}
 		for (let r = 0; r < 5; r++) baseline.push(await once('upload', 0));
 
-		const rssStart = rss(server.pid!);
-		console.log(`load: ${USERS} users (${UPLOADERS} uploading) for ${SECONDS} s on ${ORIGIN}; server RSS at start ${(rssStart / MB).toFixed(1)} MB`);
-		const samples: Sample[] = [];
-		const until = performance.now() + SECONDS * 1000;
 		const readers = USERS - UPLOADERS;
-		const user = async (u: number) => {
-			const kind: Kind = u < UPLOADERS ? 'upload' : u - UPLOADERS < Math.ceil(readers / 2) ? 'page' : 'api';
-			for (let i = u; performance.now() < until; i++) samples.push(await once(kind, i));
+		const drive = async (seconds: number, into: Sample[]) => {
+			const until = performance.now() + seconds * 1000;
+			const user = async (u: number) => {
+				const kind: Kind = u < UPLOADERS ? 'upload' : u - UPLOADERS < Math.ceil(readers / 2) ? 'page' : 'api';
+				for (let i = u; performance.now() < until; i++) into.push(await once(kind, i));
+			};
+			await Promise.all(Array.from({ length: USERS }, (_, u) => user(u)));
 		};
+		// Warm-up at full load, not counted: JIT, connection pools and caches fill here,
+		// so the growth figure below is about the run, not about start-up.
+		const rssCold = rss(server.pid!);
+		await drive(WARMUP, []);
+		const rssStart = rss(server.pid!);
+		console.log(
+			`load: ${USERS} users (${UPLOADERS} uploading) for ${SECONDS} s on ${ORIGIN} after a ${WARMUP} s warm-up; ` +
+				`server RSS cold ${(rssCold / MB).toFixed(1)} MB, after warm-up ${(rssStart / MB).toFixed(1)} MB`
+		);
+		const samples: Sample[] = [];
+		const cpu0 = cpuSeconds(server.pid!);
+		const self0 = process.cpuUsage();
 		const t0 = performance.now();
 		let peak = rssStart;
 		const sampler = setInterval(() => (peak = Math.max(peak, rss(server.pid!))), 500);
-		await Promise.all(Array.from({ length: USERS }, (_, u) => user(u)));
+		await drive(SECONDS, samples);
 		clearInterval(sampler);
 		const elapsed = (performance.now() - t0) / 1000;
+		const serverCpu = cpuSeconds(server.pid!) - cpu0;
+		const self = process.cpuUsage(self0);
+		const clientCpu = (self.user + self.system) / 1e6;
 		const rssEnd = rss(server.pid!);
 
 		const stats = (list: Sample[]) => {
@@ -226,6 +250,16 @@ async function main() {
 			base[kind] = stats(baseline.filter((x) => x.kind === kind));
 			console.log(row(`${kind} (idle baseline)`, base[kind]));
 		}
+		const byPath = new Map<string, Sample[]>();
+		for (const x of samples) byPath.set(x.path, [...(byPath.get(x.path) ?? []), x]);
+		const slowest = [...byPath].map(([p, l]) => [p, stats(l)] as const).sort((a, b) => b[1].p95 - a[1].p95).slice(0, 6);
+		console.log('\nslowest paths under load (p95):');
+		for (const [p, st] of slowest) console.log(row(`  ${p}`.slice(0, 22), st));
+		console.log(`  (${slowest.map(([p]) => p).join(', ')})`);
+		console.log(
+			`\nCPU over the measured run: server ${serverCpu.toFixed(1)} s of ${elapsed.toFixed(1)} s (${((100 * serverCpu) / elapsed).toFixed(0)} % of one core), ` +
+				`load generator ${clientCpu.toFixed(1)} s (${((100 * clientCpu) / elapsed).toFixed(0)} %); machine has ${(await import('node:os')).cpus().length} CPUs`
+		);
 		console.log(`\nloaded/idle p95 ratio: page ${(loaded.page.p95 / base.page.p95).toFixed(1)}×, api ${(loaded.api.p95 / base.api.p95).toFixed(1)}×, upload ${(loaded.upload.p95 / base.upload.p95).toFixed(1)}×`);
 		const growth = (rssEnd - rssStart) / rssStart;
 		console.log(`server RSS: start ${(rssStart / MB).toFixed(1)} MB, end ${(rssEnd / MB).toFixed(1)} MB (${(growth * 100).toFixed(1)} %), peak ${(peak / MB).toFixed(1)} MB`);
