@@ -76,7 +76,7 @@ describe('nonlinear prediction with linear section tables equals the linear pred
 				{ eta: 1, chord: 0.08, twistDeg: 0, a0: A0, alphaZeroLiftDeg: AL0 }
 			],
 			segments: [],
-			sectionTables: [{ name: 'lin', ...linearTable(0) }]
+			sectionTables: [{ name: 'lin', alphaDeg: Array.from(linearTable(0).alphaDeg), cl: Array.from(linearTable(0).cl) }]
 		};
 		const t = sectionTablesOf(geometry);
 		expect(t.sections).toHaveLength(2);
