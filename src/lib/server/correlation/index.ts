@@ -576,6 +576,8 @@ export interface CalibratedRunCheck {
 	rmsOriginal: number;
 	rmsCalibrated: number;
 	usedInFit: boolean;
+	/** The linear-range points compared, with the original and calibrated model's CL (on refArea) at each. */
+	compared: { alphaDeg: number; CL: number; CLoriginal: number; CLcalibrated: number }[];
 }
 
 /**
@@ -597,15 +599,20 @@ export async function calibrationAgainstRuns(calibrationId: number): Promise<{ c
 		const { wing } = configurations.toWing(config.geometry);
 		const cw = calibratedWing(wing, cal.result.a0Scale.value, cal.result.alphaZeroLiftShiftDeg.value);
 		const ratio = (config.planform?.area ?? 1) / (config.refArea ?? config.planform?.area ?? 1);
-		const rms = (w: typeof wing) => {
-			let s = 0;
-			for (const o of obs) {
-				const cl = liftCurve(w, [o.alphaDeg], { mach: o.mach ?? 0 }).points[0].CL * ratio;
-				s += (o.CL - cl) ** 2;
-			}
-			return Math.sqrt(s / obs.length);
-		};
-		out.push({ runId: Number(run.id), runNumber: run.runNumber, configurationId: config.id, points: obs.length, rmsOriginal: rms(wing), rmsCalibrated: rms(cw), usedInFit: cal.runIds.includes(Number(run.id)) });
+		const model = (w: typeof wing) => obs.map((o) => liftCurve(w, [o.alphaDeg], { mach: o.mach ?? 0 }).points[0].CL * ratio);
+		const rms = (cl: number[]) => Math.sqrt(obs.reduce((t, o, i) => t + (o.CL - cl[i]) ** 2, 0) / obs.length);
+		const original = model(wing);
+		const calibrated = model(cw);
+		out.push({
+			runId: Number(run.id),
+			runNumber: run.runNumber,
+			configurationId: config.id,
+			points: obs.length,
+			rmsOriginal: rms(original),
+			rmsCalibrated: rms(calibrated),
+			usedInFit: cal.runIds.includes(Number(run.id)),
+			compared: obs.map((o, i) => ({ alphaDeg: o.alphaDeg, CL: o.CL, CLoriginal: original[i], CLcalibrated: calibrated[i] }))
+		});
 	}
 	return { calibration: cal, runs: out };
 }
