@@ -7,6 +7,8 @@ import { TokenInput, issuesToDetails } from '$lib/server/people/schemas';
 import { apiError } from '$lib/server/http';
 import type { RequestHandler } from './$types';
 
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
 /**
  * Your API tokens. Admins may pass ?userId=<id> for someone else's, or
  * ?all=true for everyone's.
@@ -16,6 +18,9 @@ export const GET: RequestHandler = async ({ locals, url }) => {
 	if (denied) return denied;
 	const userId = url.searchParams.get('userId');
 	const all = url.searchParams.get('all') === 'true';
+	if (userId !== null && !UUID.test(userId)) {
+		return apiError(400, 'invalid', 'userId must be a user id (a UUID).', [{ field: 'userId', message: 'not a UUID' }]);
+	}
 	if ((all || (userId && userId !== locals.user!.id)) && !can(locals.user!.role, 'administer')) {
 		return apiError(403, 'forbidden', "Only admins see other people's tokens (needs 'administer').");
 	}
