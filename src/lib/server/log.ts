@@ -114,7 +114,8 @@ export function log(): Logger {
 export function safeUrl(url: URL): string {
 	if (!url.search) return url.pathname;
 	const params = new URLSearchParams();
-	for (const [k, v] of url.searchParams) params.append(k, SENSITIVE_QUERY.test(k) ? CENSOR : v.slice(0, 200));
+	// An empty value (SvelteKit's `?/password` action names) has nothing to hide.
+	for (const [k, v] of url.searchParams) params.append(k, v && SENSITIVE_QUERY.test(k) ? CENSOR : v.slice(0, 200));
 	return `${url.pathname}?${params.toString()}`;
 }
 
