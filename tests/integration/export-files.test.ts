@@ -12,12 +12,13 @@ import { QueryTypes } from 'sequelize';
 import { getSequelize, closeSequelize } from '../../src/lib/server/db';
 import { buildSummaryCampaign, type SummaryCampaign } from './summary-campaign';
 import { baseUrl } from '../support/env';
+import { testAddress } from '../support/session';
 
 let C: SummaryCampaign;
 const q = <T>(sql: string, replacements: Record<string, unknown>) => getSequelize().query<T>(sql, { replacements, type: QueryTypes.SELECT });
 
 async function download(path: string, token = C.tokens.program_manager) {
-	const res = await fetch(`${baseUrl()}/api/v1${path}`, { headers: { authorization: `Bearer ${token}` } });
+	const res = await fetch(`${baseUrl()}/api/v1${path}`, { headers: { authorization: `Bearer ${token}`, 'x-forwarded-for': testAddress() } });
 	return { status: res.status, type: res.headers.get('content-type') ?? '', disposition: res.headers.get('content-disposition') ?? '', bytes: Buffer.from(await res.arrayBuffer()) };
 }
 

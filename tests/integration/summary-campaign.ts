@@ -14,6 +14,10 @@ import { QueryTypes } from 'sequelize';
 import { getSequelize } from '../../src/lib/server/db';
 import { tokenFor } from '../support/auth';
 import { baseUrl } from '../support/env';
+import { testAddress } from '../support/session';
+
+// The test server reads the client address from X-Forwarded-For (scripts/test.mjs): every request sends one.
+const ADDRESS = testAddress();
 
 export interface SummaryCampaign {
 	tag: string;
@@ -29,7 +33,7 @@ export async function call(token: string, method: string, path: string, body?: u
 	const res = await fetch(`${baseUrl()}/api/v1${path}`, {
 		method,
 		body: body === undefined ? undefined : JSON.stringify(body),
-		headers: { authorization: `Bearer ${token}`, ...(body === undefined ? {} : { 'content-type': 'application/json' }) }
+		headers: { authorization: `Bearer ${token}`, 'x-forwarded-for': ADDRESS, ...(body === undefined ? {} : { 'content-type': 'application/json' }) }
 	});
 	const text = await res.text();
 	let parsed: unknown = text;
@@ -59,7 +63,7 @@ function scaledFixture(factor: number, tag: string): string {
 
 export async function upload(token: string, campaignId: number, params: Record<string, string | number>, body: string): Promise<number> {
 	const sp = new URLSearchParams(Object.fromEntries(Object.entries({ name: `summary-${params.runNumber}.csv`, ...params }).map(([k, v]) => [k, String(v)])));
-	const res = await fetch(`${baseUrl()}/api/v1/campaigns/${campaignId}/runs?${sp}`, { method: 'POST', body, headers: { authorization: `Bearer ${token}`, 'content-type': 'text/csv' } });
+	const res = await fetch(`${baseUrl()}/api/v1/campaigns/${campaignId}/runs?${sp}`, { method: 'POST', body, headers: { authorization: `Bearer ${token}`, 'content-type': 'text/csv', 'x-forwarded-for': ADDRESS } });
 	const json = await res.json();
 	if (res.status !== 201) throw new Error(`upload failed: ${res.status} ${JSON.stringify(json).slice(0, 400)}`);
 	return json.run.id as number;
