@@ -2,7 +2,9 @@
  * Streaming CSV reading. Bytes come from a Node Readable or any async
  * iterable of chunks and are never held whole: they are checked for UTF-8
  * (a strict validator, with the byte offset and line of the first bad byte)
- * and NUL bytes, then tokenised by csv-parse's streaming parser. Only the
+ * and NUL bytes, then tokenised: by hand while no double quote has appeared
+ * (plain lines and separators; see openCsv for why), by csv-parse's streaming
+ * parser from the first quote on. Only the
  * first rows are buffered, to detect the separator, the decimal mark and the
  * layout (preamble, header, unit row).
  *
@@ -40,6 +42,8 @@ export interface CsvReader extends TableHead {
 	format: CsvFormat;
 	/** The data rows, streamed; iterate once. `row` is the 1-based line number. */
 	rows: AsyncIterable<DataRow>;
+	/** The same data rows in batches (iterate either `rows` or `batches`, once). */
+	batches: AsyncIterable<DataRow[]>;
 	/** Stop reading (when the rows are not wanted after all). */
 	close(): void;
 }
@@ -248,12 +252,12 @@ export function detectDecimalComma(lines: string[], sep: Separator): boolean {
 	return comma > point;
 }
 
-function mapParseError(err: unknown, limits: ImportLimits): unknown {
+function mapParseError(err: unknown, limits: ImportLimits, lineOffset = 0): unknown {
 	if (err instanceof ImportError) return err;
 	const e = err as { code?: string; lines?: number; message?: string };
 	// csv-parse's codes mostly start with CSV_, but not all (INVALID_OPENING_QUOTE).
-	if (err instanceof CsvError || (e && typeof e.code === 'string' && e.code.startsWith('CSV_'))) {
-		const line = typeof e.lines === 'number' ? e.lines : undefined;
+	if (err instanceof CsvError || (e && typeof e.code === 'string' && (e.code.startsWith('CSV_') || e.code === 'INVALID_OPENING_QUOTE'))) {
+		const line = typeof e.lines === 'number' ? e.lines + lineOffset : undefined;
 		if (e.code === 'CSV_MAX_RECORD_SIZE') {
 			return new ImportError(413, 'line_too_long', `line ${line ?? '?'} is longer than the limit of ${fmtCount(limits.maxLineLength)} characters`, [
 				{ row: line, message: 'line too long' }
@@ -317,74 +321,144 @@ export async function openCsv(source: ByteSource, options: CsvOptions = {}): Pro
 	const separator = options.separator ?? detectSeparator(lines);
 	const decimalComma = options.decimalComma ?? detectDecimalComma(lines.slice(Math.floor(lines.length / 3)), separator);
 
-	// No `info: true`: building an info object per record costs about as much
-	// as tokenising. Line numbers are counted here instead: one per record plus
-	// the line breaks inside quoted cells (looked for only once a quote was seen).
-	const parser = parse({
-		delimiter: separator,
-		relax_column_count: true,
-		skip_empty_lines: false,
-		max_record_size: limits.maxLineLength
-	});
-	async function* all(): AsyncGenerator<Buffer> {
-		yield headBuf;
-		if (!ended) yield* text;
-	}
-	const done = pipeline(Readable.from(all(), { objectMode: false }), parser);
-	done.catch(() => undefined); // surfaced through the iterator below
-	// Records are drained synchronously with read() in batches: one await per
-	// batch instead of one per record.
-	const queue: string[][] = [];
-	let qi = 0;
+	// Two tokenisers. csv-parse handles every file or remainder of a file that
+	// holds a double quote (quoted fields, separators and line breaks inside
+	// quotes, quote errors). Before the first quote, lines are split here by
+	// hand: without quotes CSV is just lines and separators, and the hand split
+	// reads a 1,000,000-row file several times faster than the general
+	// tokeniser (the import benchmark, scripts/bench-import.ts). The switch
+	// happens at a chunk boundary, where no record is open. Bare CR line ends
+	// (no LF) also go to csv-parse, which detects them.
+	const maxLine = limits.maxLineLength;
+	let line = 0; // file lines handed out so far
+	let fastCarry = ''; // the unfinished last line of the previous chunk
+	let fastDone = false;
+	let parser: ReturnType<typeof parse> | null = null;
+	let parserLineOffset = 0;
+	let done: Promise<void> = Promise.resolve();
 	let finished = false;
 	let failure: unknown = null;
-	parser.on('end', () => (finished = true));
-	parser.on('close', () => (finished = true));
-	parser.on('error', (err) => (failure = err));
+	const queue: string[][] = [];
+	const rawLines: (string | undefined)[] = []; // the raw line of each queued record (fast path, comma files)
+	const keepLines = separator === ',';
+	let qi = 0;
+	const chunks = (async function* (): AsyncGenerator<Buffer> {
+		yield headBuf;
+		if (!ended) yield* text;
+	})();
+
+	const startParser = (first: string, rest: AsyncGenerator<Buffer> | null): void => {
+		// No `info: true`: building an info object per record costs about as much
+		// as tokenising. Line numbers are counted here instead: one per record plus
+		// the line breaks inside quoted cells (looked for only once a quote was seen).
+		parserLineOffset = line;
+		const p = parse({ delimiter: separator, relax_column_count: true, skip_empty_lines: false, max_record_size: maxLine });
+		async function* feed(): AsyncGenerator<Buffer> {
+			if (first) yield Buffer.from(first, 'utf8');
+			if (rest) yield* rest;
+		}
+		done = pipeline(Readable.from(feed(), { objectMode: false }), p);
+		done.catch(() => undefined); // surfaced through the iterator below
+		p.on('end', () => (finished = true));
+		p.on('close', () => (finished = true));
+		p.on('error', (err) => (failure = err));
+		parser = p;
+	};
+
+	const tooLong = (at: number) =>
+		new ImportError(413, 'line_too_long', `line ${at} is longer than the limit of ${fmtCount(maxLine)} characters`, [{ row: at, message: 'line too long' }]);
+
+	/** Split whole lines of `text` (quote-free) into the queue; returns the unfinished tail. */
+	const splitLines = (chunk: string, final: boolean): string => {
+		let a = 0;
+		for (;;) {
+			const b = chunk.indexOf('\n', a);
+			if (b < 0) break;
+			let e = b;
+			if (e > a && chunk.charCodeAt(e - 1) === 13) e--;
+			if (e - a > maxLine) throw tooLong(line + queue.length - qi + 1);
+			const l = chunk.slice(a, e);
+			queue.push(l.split(separator));
+			if (keepLines) rawLines[queue.length - 1] = l;
+			a = b + 1;
+		}
+		let tail = chunk.slice(a);
+		if (final && tail !== '') {
+			if (tail.charCodeAt(tail.length - 1) === 13) tail = tail.slice(0, -1);
+			if (tail.length > maxLine) throw tooLong(line + queue.length - qi + 1);
+			queue.push(tail.split(separator));
+			tail = '';
+		} else if (tail.length > maxLine) throw tooLong(line + queue.length - qi + 1);
+		return tail;
+	};
+
+	/** A bare CR (not followed by LF) somewhere in the chunk. */
+	const bareCr = (chunk: string): boolean => {
+		for (let i = chunk.indexOf('\r'); i !== -1; i = chunk.indexOf('\r', i + 1)) if (i + 1 < chunk.length && chunk.charCodeAt(i + 1) !== 10) return true;
+		return false;
+	};
+
 	const refill = async (): Promise<void> => {
 		queue.length = 0;
+		rawLines.length = 0;
 		qi = 0;
+		if (!parser && !fastDone) {
+			for (;;) {
+				const next = await chunks.next();
+				if (next.done) {
+					fastDone = true;
+					fastCarry = splitLines(fastCarry, true);
+					return;
+				}
+				const chunk = fastCarry + next.value.toString('utf8');
+				if (chunk.indexOf('"') !== -1 || bareCr(chunk)) {
+					fastCarry = '';
+					startParser(chunk, chunks);
+					break;
+				}
+				fastCarry = splitLines(chunk, false);
+				if (queue.length > 0) return;
+			}
+		}
+		const p = parser;
+		if (!p) return;
 		for (;;) {
 			let rec: string[] | null;
-			while ((rec = parser.read() as string[] | null) !== null) queue.push(rec);
-			if (queue.length > 0 || finished || failure || parser.destroyed) return;
+			while ((rec = p.read() as string[] | null) !== null) queue.push(rec);
+			if (queue.length > 0 || finished || failure || p.destroyed) return;
 			await new Promise<void>((resolve) => {
 				const wake = () => {
-					parser.off('readable', wake);
-					parser.off('end', wake);
-					parser.off('error', wake);
-					parser.off('close', wake);
+					p.off('readable', wake);
+					p.off('end', wake);
+					p.off('error', wake);
+					p.off('close', wake);
 					resolve();
 				};
-				parser.on('readable', wake);
-				parser.on('end', wake);
-				parser.on('error', wake);
-				parser.on('close', wake);
+				p.on('readable', wake);
+				p.on('end', wake);
+				p.on('error', wake);
+				p.on('close', wake);
 			});
 		}
 	};
-	let line = 0;
+	const stop = () => {
+		fastDone = true;
+		if (parser && !parser.destroyed) parser.destroy();
+		void chunks.return(undefined);
+	};
 
-	const nextRecord = async (): Promise<DataRow | null> => {
-		for (;;) {
-			if (qi >= queue.length) {
-				await refill();
-				if (failure) throw mapParseError(failure, limits);
-				if (queue.length === 0) {
-					await done.catch((err) => {
-						throw mapParseError(err, limits);
-					});
-					return null;
-				}
-			}
+	/** The next record from the queue, or undefined when the queue is empty (refill first). */
+	const take = (): DataRow | undefined => {
+		while (qi < queue.length) {
+			const raw = rawLines[qi];
 			const record = queue[qi++];
 			const start = ++line;
-			if (state.quotes) {
+			if (parser && state.quotes) {
 				for (const cell of record) for (let i = cell.indexOf('\n'); i !== -1; i = cell.indexOf('\n', i + 1)) line++;
 			}
 			if (record.length === 1 && record[0] === '') continue; // blank line
 			if (record.length > limits.maxColumns) {
-				parser.destroy();
+				stop();
 				throw new ImportError(
 					413,
 					'too_many_columns',
@@ -392,7 +466,27 @@ export async function openCsv(source: ByteSource, options: CsvOptions = {}): Pro
 					[{ row: start, message: 'too many columns' }]
 				);
 			}
-			return { row: start, cells: record };
+			return raw !== undefined ? { row: start, cells: record, line: raw } : { row: start, cells: record };
+		}
+		return undefined;
+	};
+	/** Refill the queue; false at the end of the file. */
+	const more = async (): Promise<boolean> => {
+		await refill();
+		if (failure) throw mapParseError(failure, limits, parserLineOffset);
+		if (queue.length === 0) {
+			await done.catch((err) => {
+				throw mapParseError(err, limits, parserLineOffset);
+			});
+			return false;
+		}
+		return true;
+	};
+	const nextRecord = async (): Promise<DataRow | null> => {
+		for (;;) {
+			const r = take();
+			if (r) return r;
+			if (!(await more())) return null;
 		}
 	};
 
@@ -406,55 +500,70 @@ export async function openCsv(source: ByteSource, options: CsvOptions = {}): Pro
 	try {
 		layout = detectLayout(sample, decimalComma);
 	} catch (err) {
-		parser.destroy();
+		stop();
 		throw err;
 	}
 	const { dataIndex, ...tableHead } = layout;
 
-	async function* rows(): AsyncGenerator<DataRow> {
+	/** Data rows in batches (one await per queue refill, not per row). */
+	async function* batches(): AsyncGenerator<DataRow[]> {
 		let count = 0;
 		const tooMany = (row: number) => {
-			parser.destroy();
+			stop();
 			return new ImportError(413, 'too_many_rows', `the file has more than ${fmtCount(limits.maxRows)} data rows (the limit), at line ${row}`, [
 				{ row, message: 'too many rows' }
 			]);
 		};
 		try {
+			const first: DataRow[] = [];
 			for (let i = dataIndex; i < sample.length; i++) {
 				if (isBlank(sample[i].cells)) continue;
 				if (++count > limits.maxRows) throw tooMany(sample[i].row);
-				yield sample[i];
+				first.push(sample[i]);
 			}
+			if (first.length) yield first;
 			for (;;) {
-				const r = await nextRecord();
-				if (!r) break;
-				if (isBlank(r.cells)) continue;
-				if (++count > limits.maxRows) throw tooMany(r.row);
-				yield r;
+				const batch: DataRow[] = [];
+				let r: DataRow | undefined;
+				while ((r = take()) !== undefined) {
+					if (isBlank(r.cells)) continue;
+					if (++count > limits.maxRows) throw tooMany(r.row);
+					batch.push(r);
+				}
+				if (batch.length) yield batch;
+				if (!(await more())) break;
 			}
 		} finally {
-			if (!parser.destroyed && !parser.readableEnded) parser.destroy();
+			if (parser && !parser.destroyed && !parser.readableEnded) parser.destroy();
+			fastDone = true;
 		}
+	}
+	const batchIterator = batches();
+	async function* rows(): AsyncGenerator<DataRow> {
+		for await (const b of batchIterator) yield* b;
 	}
 
 	return {
 		...tableHead,
 		format: { separator, decimalComma, bom: state.bom },
 		rows: rows(),
-		close: () => {
-			if (!parser.destroyed) parser.destroy();
-		}
+		batches: batchIterator,
+		close: stop
 	};
 }
 
 function isBlank(cells: (string | number | null)[]): boolean {
-	for (const c of cells) if (c !== null && String(c).trim() !== '') return false;
+	for (const c of cells) {
+		// Most rows start with a cell that is plainly not blank.
+		if (typeof c === 'string' && c.length > 0 && c.charCodeAt(0) > 32) return false;
+		if (c !== null && String(c).trim() !== '') return false;
+	}
 	return true;
 }
 
 /** Read a whole (small) CSV into memory: head plus all data rows. */
-export async function readCsv(source: ByteSource, options: CsvOptions = {}): Promise<Omit<CsvReader, 'rows' | 'close'> & { rows: DataRow[] }> {
-	const { close: _close, ...reader } = await openCsv(source, options);
+export async function readCsv(source: ByteSource, options: CsvOptions = {}): Promise<Omit<CsvReader, 'rows' | 'close' | 'batches'> & { rows: DataRow[] }> {
+	const { close: _close, batches: _batches, ...reader } = await openCsv(source, options);
 	const rows: DataRow[] = [];
 	for await (const r of reader.rows) rows.push(r);
 	return { ...reader, rows };

@@ -32,6 +32,8 @@ export interface TableHead {
 export interface DataRow {
 	row: number;
 	cells: Cell[];
+	/** The line as read, when the CSV separator is a comma and no quotes were involved (lets the import reuse it as COPY text). */
+	line?: string;
 }
 
 export function cellText(c: Cell): string {

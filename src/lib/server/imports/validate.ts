@@ -137,31 +137,57 @@ interface Mapped {
 	out: Growable;
 }
 
+const POINT_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+/**
+ * Where validated rows go as PostgreSQL COPY text (import of a run): each
+ * stored row becomes `<prefix><row>\t{v,v,NULL,…}\n` with every column's raw
+ * number in the file's units (NULL where a cell is not a number), written in
+ * batches of about `batchChars` characters.
+ */
+export interface CopySink {
+	prefix: string;
+	write: (text: string) => Promise<void> | void;
+	batchChars?: number;
+}
+
 /**
  * Validate data rows against a mapping, filling SI column arrays. Rows listed
- * in `exclude` are skipped before validation.
+ * in `exclude` are skipped before validation. `rows` may yield rows or
+ * arrays of rows (batches, one await per batch). With `copy`, the COPY text
+ * of the samples is produced in the same pass (each cell is read once); it
+ * stops at the first problem, since the import then stores nothing.
  */
 export async function validateRows(
-	rows: AsyncIterable<DataRow> | Iterable<DataRow>,
+	rows: AsyncIterable<DataRow | DataRow[]> | Iterable<DataRow | DataRow[]>,
 	headers: readonly string[],
 	mapping: ColumnMapping,
-	opts: { decimalComma: boolean; exclude: Set<number>; problems: ProblemList; uncached?: Set<string>; maxRows: number }
+	opts: { decimalComma: boolean; exclude: Set<number>; problems: ProblemList; uncached?: Set<string>; maxRows: number; copy?: CopySink; expectedRows?: number }
 ): Promise<{ columns: Map<string, Float64Array>; rowNumbers: Uint32Array; rowCount: number; excluded: number[] }> {
+	const cap0 = Math.max(1024, Math.min(opts.expectedRows ?? 0, opts.maxRows));
 	const mapped: Mapped[] = [];
 	for (const c of mapping.columns) {
 		if (c.field === null || c.unit === null) continue;
 		const def = UNITS[c.unit];
-		mapped.push({ index: c.index, field: c.field, header: c.header, toSI: def.toSI, out: new Growable(1024) });
+		mapped.push({ index: c.index, field: c.field, header: c.header, toSI: def.toSI, out: new Growable(cap0) });
 	}
 	const { decimalComma, exclude, problems } = opts;
-	let rowNumbers = new Uint32Array(1024);
+	let rowNumbers = new Uint32Array(cap0);
 	let n = 0;
 	const excluded: number[] = [];
 	const width = headers.length;
-	for await (const r of rows as AsyncIterable<DataRow>) {
+	// Per column: its mapping (or none), so each cell is looked at once.
+	const byColumn: (Mapped | undefined)[] = new Array(width);
+	for (const m of mapped) if (m.index < width) byColumn[m.index] = m;
+	const extra = mapped.filter((m) => m.index >= width); // refused by the mapping check; kept for safety
+	const copy = opts.copy;
+	const batchChars = copy?.batchChars ?? 1 << 20;
+	let text = '';
+	const values = new Float64Array(width);
+	const one = (r: DataRow): void => {
 		if (exclude.has(r.row)) {
 			excluded.push(r.row);
-			continue;
+			return;
 		}
 		const cells: Cell[] = r.cells;
 		if (cells.length !== width) {
@@ -169,30 +195,75 @@ export async function validateRows(
 			while (k > width && cellText(cells[k - 1]) === '') k--;
 			if (k !== width) {
 				problems.add(r.row, null, null, null, `row ${r.row} has ${k} cell${k === 1 ? '' : 's'}, the header has ${width}`);
-				continue;
+				return;
 			}
 		}
-		if (n >= rowNumbers.length) {
-			const next = new Uint32Array(rowNumbers.length * 2);
-			next.set(rowNumbers);
-			rowNumbers = next;
-		}
+		const writing = copy !== undefined && problems.total === 0;
+		// A comma line whose cells are all plain numbers is its own array literal body.
+		const reuse = writing && r.line !== undefined && cells.length === width;
+		let allRaw = true;
+		let line = writing && !reuse ? `${copy.prefix}${r.row}\t{` : '';
 		let good = true;
-		for (let j = 0; j < mapped.length; j++) {
-			const m = mapped[j];
-			const cell = cells[m.index] ?? null;
-			const v = parseNumberCell(cell, decimalComma);
-			if (typeof v === 'number') {
-				if (n >= m.out.data.length) m.out.grow(n + 1);
-				m.out.data[n] = m.toSI(v);
-			} else {
+		for (let j = 0; j < width; j++) {
+			const cell = cells[j] ?? null;
+			const m = byColumn[j];
+			let v: number | string;
+			let raw = false;
+			if (typeof cell === 'string' && !decimalComma && POINT_NUMBER.test(cell)) {
+				v = Number(cell);
+				raw = Number.isFinite(v);
+				if (!raw) v = 'is too large to be a finite number';
+			} else if (m || writing) v = parseNumberCell(cell, decimalComma);
+			else continue;
+			if (!raw) allRaw = false;
+			if (writing && !reuse) {
+				if (j) line += ',';
+				line += raw ? (cell as string) : typeof v === 'number' ? String(v) : 'NULL';
+			}
+			if (!m) continue;
+			if (typeof v === 'number') values[j] = m.toSI(v);
+			else {
 				good = false;
 				const reason = opts.uncached?.has(`${r.row}:${m.index + 1}`) ? 'is a formula without a saved value; open the file in a spreadsheet program, save it and upload again' : v;
 				problems.add(r.row, m.index + 1, m.header, cellText(cell), cellMessage(r.row, m.header, cellText(cell), reason));
 			}
 		}
-		if (good) rowNumbers[n++] = r.row;
+		for (const m of extra) {
+			good = false;
+			problems.add(r.row, m.index + 1, m.header, '', cellMessage(r.row, m.header, '', 'is empty'));
+		}
+		if (reuse && allRaw) line = `${copy.prefix}${r.row}\t{${r.line}`;
+		else if (reuse) {
+			line = `${copy.prefix}${r.row}\t{`;
+			for (let j = 0; j < width; j++) {
+				const cell = cells[j];
+				const v = parseNumberCell(cell, decimalComma);
+				line += (j ? ',' : '') + (typeof cell === 'string' && !decimalComma && POINT_NUMBER.test(cell) && typeof v === 'number' ? cell : typeof v === 'number' ? String(v) : 'NULL');
+			}
+		}
+		if (writing && problems.total === 0) text += line + '}\n';
+		if (!good) return;
+		if (n >= rowNumbers.length) {
+			const next = new Uint32Array(rowNumbers.length * 2);
+			next.set(rowNumbers);
+			rowNumbers = next;
+		}
+		for (const m of mapped) {
+			if (n >= m.out.data.length) m.out.grow(n + 1);
+			m.out.data[n] = values[m.index];
+		}
+		rowNumbers[n++] = r.row;
+	};
+	for await (const item of rows as AsyncIterable<DataRow | DataRow[]>) {
+		if (Array.isArray(item)) for (const r of item) one(r);
+		else one(item);
+		if (copy && text.length >= batchChars) {
+			const t = text;
+			text = '';
+			if (problems.total === 0) await copy.write(t);
+		}
 	}
+	if (copy && text && problems.total === 0) await copy.write(text);
 	const columns = new Map<string, Float64Array>();
 	for (const m of mapped) columns.set(m.field, m.out.data.subarray(0, n));
 	return { columns, rowNumbers: rowNumbers.subarray(0, n), rowCount: n, excluded };
@@ -317,7 +388,7 @@ export async function readRunFile(input: ReadRunFileInput): Promise<ReadRunFileR
 		reader.close();
 		return { ok: false, problems: list.items, moreProblems: list.more, summary: list.summary(), mappingProposal: input.mapping ? null : mapping, headers: reader.headers, warnings };
 	}
-	const result = await validateRows(reader.rows, reader.headers, mapping, { decimalComma: reader.format.decimalComma, exclude, problems: list, maxRows: limits.maxRows });
+	const result = await validateRows(reader.batches, reader.headers, mapping, { decimalComma: reader.format.decimalComma, exclude, problems: list, maxRows: limits.maxRows });
 	const format: SourceFormat = { type: 'csv', ...reader.format };
 	return conclude(input, list, mapping, warnings, format, reader, result);
 }

@@ -25,7 +25,6 @@ import { openCsv } from '../imports/csv';
 import { ImportError, type ImportProblem } from '../imports/errors';
 import type { DataRow } from '../imports/layout';
 import { applyProfile, proposeMapping, validateMapping, type ColumnMapping, type RunKind } from '../imports/mapping';
-import { parseNumberCell } from '../imports/numbers';
 import { ProblemList, sniffKind, validateRows } from '../imports/validate';
 import { parseSpreadsheetInWorker } from '../imports/xlsx';
 import { RunError } from './errors';
@@ -231,26 +230,6 @@ export function mappingProblems(list: ProblemList, mapping: ColumnMapping, kind:
 	return bad || !check.ok;
 }
 
-const POINT = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
-
-/** One sample's raw values as a PostgreSQL array literal, file units, NULL for non-numbers. */
-function arrayLiteral(cells: DataRow['cells'], width: number, decimalComma: boolean): string {
-	let s = '{';
-	for (let j = 0; j < width; j++) {
-		if (j) s += ',';
-		const c = cells[j];
-		if (typeof c === 'string') {
-			if (!decimalComma && POINT.test(c)) s += c;
-			else {
-				const v = parseNumberCell(c, decimalComma);
-				s += typeof v === 'number' ? String(v) : 'NULL';
-			}
-		} else if (typeof c === 'number' && Number.isFinite(c)) s += String(c);
-		else s += 'NULL';
-	}
-	return s + '}';
-}
-
 /** Streams sample lines into COPY on the transaction's connection, with back-pressure. */
 class SampleCopy {
 	private buf = '';
@@ -271,15 +250,11 @@ class SampleCopy {
 		});
 		this.ended.catch(() => {});
 	}
-	async add(line: string): Promise<void> {
+	/** A batch of COPY text lines (the validator writes about 1 MB at a time). */
+	async write(text: string): Promise<void> {
 		if (this.error) throw this.error;
-		this.buf += line;
-		this.count++;
-		if (this.buf.length >= 1 << 18) {
-			const ok = this.stream.write(this.buf);
-			this.buf = '';
-			if (!ok) await Promise.race([once(this.stream, 'drain'), this.ended]);
-		}
+		if (!this.stream.write(text)) await Promise.race([once(this.stream, 'drain'), this.ended]);
+		if (this.error) throw this.error;
 	}
 	/** Stop the COPY (CopyFail), so the connection can roll back. */
 	async abort(): Promise<void> {
@@ -303,13 +278,15 @@ interface Prepared {
 	headerRow: number;
 	unitRow: number | null;
 	preamble: { row: number; key: string; value: string }[];
-	rows: AsyncIterable<DataRow> | Iterable<DataRow>;
+	rows: AsyncIterable<DataRow | DataRow[]> | Iterable<DataRow | DataRow[]>;
 	decimalComma: boolean;
 	format: Record<string, unknown>;
 	sheet: string | null;
 	list: ProblemList;
 	uncached?: Set<string>;
 	warnings: string[];
+	/** Rows expected from the Content-Length and the head's line length (sizes the column arrays once). */
+	expectedRows?: number;
 }
 
 /** Open the file (sniff, then CSV stream or XLSX in the worker) up to its data rows. */
@@ -366,13 +343,18 @@ async function openFile(tap: UploadTap, name: string, sheet: string | undefined)
 		};
 	}
 	const reader = await openCsv(tap.source([first]));
+	let newlines = 0;
+	for (let i = first.indexOf(10); i !== -1; i = first.indexOf(10, i + 1)) newlines++;
+	// 10 % over the estimate: data lines are rarely longer than the head's average.
+	const expectedRows = tap.total !== null && newlines > 1 ? Math.ceil((1.1 * tap.total * newlines) / first.length) : undefined;
 	return {
+		expectedRows,
 		headers: reader.headers,
 		unitCells: reader.unitCells,
 		headerRow: reader.headerRow,
 		unitRow: reader.unitRow,
 		preamble: reader.preamble,
-		rows: reader.rows,
+		rows: reader.batches,
 		decimalComma: reader.format.decimalComma,
 		format: { type: 'csv', ...reader.format },
 		sheet: null,
@@ -460,26 +442,36 @@ export async function importRun(actor: Actor, input: ImportInput, onProgress: (p
 		copy = new SampleCopy(t);
 		const sampleCopy = copy;
 		const exclude = new Set(q.exclude ?? []);
-		const width = f.headers.length;
 		const prefix = `${run.id}\t${sf.id}\t`;
 		let seen = 0;
-		const rows = f.rows;
-		const tapped = (async function* () {
-			for await (const r of rows as AsyncIterable<DataRow>) {
-				if (!exclude.has(r.row)) {
-					if (runColumn && firstRunCell === null) {
+		// One pass over the rows: validation, SI columns and the samples' COPY text together.
+		const batches = (async function* () {
+			for await (const item of f.rows as AsyncIterable<DataRow | DataRow[]>) {
+				const b = Array.isArray(item) ? item : [item];
+				if (runColumn && firstRunCell === null) {
+					const r = b.find((x) => !exclude.has(x.row));
+					if (r) {
 						const c = r.cells[runColumn.index];
 						firstRunCell = c === null || c === undefined ? null : String(c).trim() || null;
 					}
-					await sampleCopy.add(`${prefix}${r.row}\t${arrayLiteral(r.cells, width, f.decimalComma)}\n`);
 				}
-				if (++seen % 50_000 === 0) onProgress({ phase: 'parse', done: seen });
-				yield r;
+				const before = seen;
+				seen += b.length;
+				if (Math.floor(seen / 50_000) > Math.floor(before / 50_000)) onProgress({ phase: 'parse', done: seen });
+				yield b;
 			}
 		})();
 		let result: Awaited<ReturnType<typeof validateRows>>;
 		try {
-			result = await validateRows(tapped, f.headers, mapping, { decimalComma: f.decimalComma, exclude, problems: f.list, uncached: f.uncached, maxRows: 2_000_000 });
+			result = await validateRows(batches, f.headers, mapping, {
+				decimalComma: f.decimalComma,
+				exclude,
+				problems: f.list,
+				uncached: f.uncached,
+				maxRows: 2_000_000,
+				copy: { prefix, write: (text) => sampleCopy.write(text) },
+				...(f.expectedRows ? { expectedRows: f.expectedRows } : {})
+			});
 		} catch (e) {
 			if (e instanceof ImportError) throw fromImportError(e);
 			throw e;
