@@ -33,7 +33,11 @@ const EXPECTED_TABLES = [
 	'predictions',
 	'deltas',
 	'audit_events',
-	'calibrations'
+	'calibrations',
+	'notification_preferences',
+	'digest_deliveries',
+	'summary_snapshots',
+	'tolerance_notices'
 ].sort();
 
 let sequelize: Sequelize;
