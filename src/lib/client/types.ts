@@ -81,7 +81,7 @@ export interface RunDetail {
 	conditions: Conditions;
 	sourceFiles: { id: number; name: string; size: number; sha256: string; sheet: string | null; storage: string }[];
 	currentReduction: Reduction | null;
-	reductions: { id: number; version: number; createdAt: string; createdBy: string | { name?: string | null; email?: string } | null; isCurrent: boolean; settings?: Record<string, unknown> }[];
+	reductions: { id: number; version: number; createdAt: string; createdBy: string | null; createdByName: string | null; isCurrent: boolean; settings?: Record<string, unknown> }[];
 	notes: string | null;
 	allowedTransitions: string[];
 }

@@ -58,7 +58,7 @@ export interface RunDetail {
 	conditions: { qPa: number | null; velocity: number | null; density: number | null; temperatureK: number | null; pressurePa: number | null; reynolds: number | null; mach: number | null };
 	sourceFiles: { id: number; name: string; size: number; sha256: string; sheet: string | null; storage: string; rowCount: number | null }[];
 	currentReduction: ReductionDto | null;
-	reductions: { id: number; version: number; createdAt: string; createdBy: string | null; isCurrent: boolean }[];
+	reductions: { id: number; version: number; createdAt: string; createdBy: string | null; createdByName: string | null; isCurrent: boolean }[];
 	notes: string | null;
 	allowedTransitions: string[];
 }
@@ -101,6 +101,17 @@ export async function getRun(id: number, role: Role | null): Promise<RunDetail |
 	);
 	const reds = await Reduction.findAll({ where: { runId: id }, order: [['version', 'ASC']] });
 	const current = reds.find((r) => r.isCurrent) ?? null;
+	const authorIds = [...new Set(reds.map((r) => r.createdBy).filter((u): u is string => Boolean(u)))];
+	const authors = new Map(
+		authorIds.length === 0
+			? []
+			: (
+					await getSequelize().query<{ id: string; name: string | null; email: string }>('SELECT id, name, email FROM users WHERE id IN (:ids)', {
+						replacements: { ids: authorIds },
+						type: QueryTypes.SELECT
+					})
+				).map((u) => [u.id, u.name ?? u.email])
+	);
 	const c = run.conditions ?? {};
 	return {
 		id: Number(run.id),
@@ -123,7 +134,7 @@ export async function getRun(id: number, role: Role | null): Promise<RunDetail |
 		},
 		sourceFiles: files.map((f) => ({ id: Number(f.id), name: f.name, size: Number(f.size), sha256: f.sha256, sheet: f.sheet, storage: f.storage, rowCount: f.row_count })),
 		currentReduction: current ? reductionDto(current) : null,
-		reductions: reds.map((r) => ({ id: Number(r.id), version: r.version, createdAt: r.createdAt.toISOString(), createdBy: r.createdBy ?? null, isCurrent: r.isCurrent })),
+		reductions: reds.map((r) => ({ id: Number(r.id), version: r.version, createdAt: r.createdAt.toISOString(), createdBy: r.createdBy ?? null, createdByName: r.createdBy ? (authors.get(r.createdBy) ?? null) : null, isCurrent: r.isCurrent })),
 		notes: run.notes ?? null,
 		allowedTransitions: allowedTransitions(run.state, role)
 	};
