@@ -59,6 +59,7 @@ export const ROUTES: RouteCase[] = [
 	{ route: '/(app)', method: 'GET', kind: 'page', path: '/', capability: 'read' },
 	{ route: '/(app)/campaigns/[id=id]', method: 'GET', kind: 'page', path: '/campaigns/{campaign}', capability: 'read' },
 	{ route: '/(app)/campaigns/[id=id]/upload', method: 'GET', kind: 'page', path: '/campaigns/{campaign}/upload', capability: 'importRuns' },
+	{ route: '/(app)/campaigns/[id=id]/calibration', method: 'GET', kind: 'page', path: '/campaigns/{campaign}/calibration', capability: 'read' },
 	{ route: '/(app)/runs/[id=id]', method: 'GET', kind: 'page', path: '/runs/{run}', capability: 'read' },
 	{ route: '/(app)/compare', method: 'GET', kind: 'page', path: '/compare', capability: 'read' },
 	{ route: '/(app)/configurations', method: 'GET', kind: 'page', path: '/configurations', capability: 'read' },

@@ -180,3 +180,28 @@ describe('predictions with section tables', () => {
 		expect(body.prediction.outputs.alphaZeroLiftDeg).toBeLessThan(AL0 - 1);
 	});
 });
+
+describe('an imported run with the seeded configurations', () => {
+	it('predicts a run imported through the API with the clean wing and with the flap-15 wing (Δα_L0 from cf/c and δf)', async () => {
+		const { readFileSync } = await import('node:fs');
+		const { join } = await import('node:path');
+		const engineer = await signedInAs('test_engineer');
+		const list = await (await engineer.json('GET', '/api/v1/campaigns')).json();
+		const campaign = list.items.find((c: { code: string }) => c.code === 'ET1-WT-01');
+		const detail = await (await engineer.json('GET', `/api/v1/campaigns/${campaign.id}`)).json();
+		const fixture = readFileSync(join(process.cwd(), 'fixtures', 'tunnel-clean-polar.csv'));
+		for (const name of ['ET-1 model clean wing', 'ET-1 model flap 15']) {
+			const cfg = detail.configurations.filter((c: { name: string }) => c.name === name).sort((a: { version: number }, b: { version: number }) => b.version - a.version)[0];
+			const body = Buffer.concat([Buffer.from(`Note,correlation check ${name} ${tag}\n`), fixture]);
+			const q = new URLSearchParams({ name: 'clean.csv', kind: 'tunnel', runNumber: `NI-${name.length}-${tag}`, configurationId: String(cfg.id) });
+			const up = await engineer.request('POST', `/api/v1/campaigns/${campaign.id}/runs?${q}`, { body, headers: { 'content-type': 'text/csv', accept: 'application/json' } });
+			expect(up.status, await up.clone().text()).toBe(201);
+			const runId = (await up.json()).run.id;
+			const res = await aero.json('POST', `/api/v1/correlation/runs/${runId}/predict`, {});
+			expect(res.status, await res.clone().text()).toBe(201);
+			const p = (await res.json()).prediction;
+			expect(p.solver).toBe('lifting-line-glauert');
+			expect(p.outputs.points).toHaveLength(21);
+		}
+	});
+});
