@@ -13,6 +13,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { getModels, getSequelize, type Point } from '$lib/server/db';
 import * as audit from '$lib/server/audit';
+import * as notifications from '$lib/server/notifications';
 import * as configurations from '$lib/server/configurations';
 import { calibrateLiftingLine, calibratedWing, type CalibrationObservation } from '$lib/aero/calibration';
 import { liftCurve } from '$lib/aero/lifting-line';
@@ -268,6 +269,8 @@ export async function predictRun(ctx: Context, runId: number, req: PredictReques
 		);
 		return predictionId;
 	});
+	// After the commit: mail the aerodynamicists about new out-of-tolerance deltas (never throws).
+	void notifications.notifyDeltasOutOfTolerance(runId);
 	const prediction = await getPrediction(saved);
 	return { prediction, deltas: await deltasOfPrediction(saved) };
 }
