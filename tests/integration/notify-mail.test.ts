@@ -1,7 +1,8 @@
 /**
  * Notifications over real SMTP to the local mail fake: a run moved to
  * 'reduced' mails the aerodynamicists, the on-demand digest mails the
- * program managers, each with a plain-text and an HTML part; a person who
+ * program managers, and a delta beyond its band mails the aerodynamicists,
+ * each with a plain-text and an HTML part; a person who
  * turned a kind off on the notifications page receives none of it.
  */
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
@@ -54,8 +55,21 @@ describe('e-mail notifications', () => {
 		// The other reduced runs were announced too, each once per recipient.
 		await waitForMail(aero, new RegExp(`^Run ${C.runNumbers[0]} reduced`));
 		// The fresh aerodynamicist turned run_reduced off: nothing about these runs reached them.
-		const toQuiet = (await all()).filter((x) => x.to.includes(quietAero.email) && C.runNumbers.some((n) => x.subject.includes(n)));
+		const toQuiet = (await all()).filter((x) => x.to.includes(quietAero.email) && / reduced \(/.test(x.subject) && C.runNumbers.some((n) => x.subject.includes(n)));
 		expect(toQuiet).toEqual([]);
+	});
+
+	it('mails the aerodynamicists when a delta is out of tolerance, per kind: the run_reduced opt-out still gets it', async () => {
+		// ΔCL at α_ref of the 6 % lift run is far beyond the campaign's ±0.005 band (summary-campaign.ts).
+		const subject = new RegExp(`^Outside tolerance: run ${C.runNumbers[1]} `);
+		const m = await waitForMail(demoAccount('aerodynamicist').email, subject);
+		expect(m.text).toMatch(/ΔCL at α_ref at α = 4°: delta 0\.0\d+, band ±0\.005/);
+		expect(m.html).toContain('<table');
+		expect(m.html).toContain(`/runs/${C.runIds[1]}`);
+		const quiet = await waitForMail(quietAero.email, subject);
+		expect(quiet.subject).toBe(m.subject);
+		// The run without a prediction has no deltas, so no such mail.
+		expect((await all()).filter((x) => x.subject.startsWith(`Outside tolerance: run ${C.runNumbers[3]} `))).toEqual([]);
 	});
 
 	it('sends the digest on demand to the program managers, except the one who opted out', async () => {
