@@ -205,3 +205,20 @@ describe('an imported run with the seeded configurations', () => {
 		}
 	});
 });
+
+describe('requests without a forwarded client address (a browser straight at the server)', () => {
+	it('creates a configuration and predicts without the X-Forwarded-For header the test server is told to read (no 500)', async () => {
+		const { baseUrl } = await import('../support/env');
+		const headers = { cookie: [...aero.cookies].map(([k, v]) => `${k}=${v}`).join('; '), 'content-type': 'application/json', accept: 'application/json' };
+		const res = await fetch(new URL('/api/v1/configurations', baseUrl()), {
+			method: 'POST',
+			headers,
+			body: JSON.stringify({ name: `No forwarded address ${tag}`, campaignId, span: WING.span, stations: WING.stations, segments: [], refArea: REF_AREA })
+		});
+		expect(res.status, await res.clone().text()).toBe(201);
+		const cfg = await res.json();
+		const runId = await insertRun(cfg.id, `NX-${tag}`, range(-4, 8).map((a) => ({ alphaDeg: a, CL: 0.3 + 0.07 * a })));
+		const pred = await fetch(new URL(`/api/v1/correlation/runs/${runId}/predict`, baseUrl()), { method: 'POST', headers, body: '{}' });
+		expect(pred.status, await pred.clone().text()).toBe(201);
+	});
+});

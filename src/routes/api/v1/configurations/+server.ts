@@ -1,3 +1,4 @@
+import { clientAddress } from '$lib/server/auth/request';
 import { json } from '@sveltejs/kit';
 import { denyApi } from '$lib/server/auth/guard';
 import * as configurations from '$lib/server/configurations';
@@ -18,7 +19,7 @@ export const POST: RequestHandler = async (event) => {
 	const denied = denyApi(event.locals, 'editModels');
 	if (denied) return denied;
 	try {
-		const created = await configurations.create(contextOf(event.locals, event.getClientAddress()), await readJson(event.request));
+		const created = await configurations.create(contextOf(event.locals, clientAddress(event)), await readJson(event.request));
 		return json(created, { status: 201 });
 	} catch (err) {
 		return errorResponse(err);

@@ -1,3 +1,4 @@
+import { clientAddress } from '$lib/server/auth/request';
 import { json } from '@sveltejs/kit';
 import { denyApi } from '$lib/server/auth/guard';
 import * as configurations from '$lib/server/configurations';
@@ -10,7 +11,7 @@ export const POST: RequestHandler = async (event) => {
 	if (denied) return denied;
 	const body = (await readJson(event.request)) as { name?: unknown; notes?: unknown; changes?: unknown } | undefined;
 	try {
-		const created = await configurations.duplicate(contextOf(event.locals, event.getClientAddress()), Number(event.params.id), { name: body?.name, notes: body?.notes }, body?.changes);
+		const created = await configurations.duplicate(contextOf(event.locals, clientAddress(event)), Number(event.params.id), { name: body?.name, notes: body?.notes }, body?.changes);
 		return json(created, { status: 201 });
 	} catch (err) {
 		return errorResponse(err);

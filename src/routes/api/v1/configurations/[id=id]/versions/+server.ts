@@ -1,3 +1,4 @@
+import { clientAddress } from '$lib/server/auth/request';
 import { json } from '@sveltejs/kit';
 import { denyApi } from '$lib/server/auth/guard';
 import * as configurations from '$lib/server/configurations';
@@ -9,7 +10,7 @@ export const POST: RequestHandler = async (event) => {
 	const denied = denyApi(event.locals, 'editModels');
 	if (denied) return denied;
 	try {
-		const saved = await configurations.saveVersion(contextOf(event.locals, event.getClientAddress()), Number(event.params.id), await readJson(event.request));
+		const saved = await configurations.saveVersion(contextOf(event.locals, clientAddress(event)), Number(event.params.id), await readJson(event.request));
 		return json(saved, { status: 201 });
 	} catch (err) {
 		return errorResponse(err);

@@ -1,3 +1,4 @@
+import { clientAddress } from '$lib/server/auth/request';
 import { json } from '@sveltejs/kit';
 import { z } from 'zod';
 import { denyApi } from '$lib/server/auth/guard';
@@ -29,7 +30,7 @@ export const POST: RequestHandler = async (event) => {
 		return apiError(400, 'invalid', 'The calibration request has invalid fields.', parsed.error.issues.map((i) => ({ field: i.path.join('.'), message: i.message })));
 	}
 	try {
-		return json(await correlation.calibrate(contextOf(event.locals, event.getClientAddress()), Number(event.params.id), parsed.data), { status: 201 });
+		return json(await correlation.calibrate(contextOf(event.locals, clientAddress(event)), Number(event.params.id), parsed.data), { status: 201 });
 	} catch (err) {
 		return errorResponse(err);
 	}

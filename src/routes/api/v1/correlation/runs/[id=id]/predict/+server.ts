@@ -1,3 +1,4 @@
+import { clientAddress } from '$lib/server/auth/request';
 import { json } from '@sveltejs/kit';
 import { z } from 'zod';
 import { denyApi } from '$lib/server/auth/guard';
@@ -24,7 +25,7 @@ export const POST: RequestHandler = async (event) => {
 		return apiError(400, 'invalid', 'The prediction request has invalid fields.', parsed.error.issues.map((i) => ({ field: i.path.join('.'), message: i.message })));
 	}
 	try {
-		const result = await correlation.predictRun(contextOf(event.locals, event.getClientAddress()), Number(event.params.id), parsed.data as correlation.PredictRequest);
+		const result = await correlation.predictRun(contextOf(event.locals, clientAddress(event)), Number(event.params.id), parsed.data as correlation.PredictRequest);
 		return json(result, { status: 201 });
 	} catch (err) {
 		return errorResponse(err);
