@@ -74,6 +74,47 @@ describe('configuration editor', () => {
 		await context.close();
 	});
 
+	it('takes a pasted section cl(α) table, shows it, and previews the nonlinear lifting line with it (not saved)', async () => {
+		const context = await browser.newContext({ viewport: { width: 1400, height: 1500 } });
+		const page = await context.newPage();
+		const account = demoAccount('aerodynamicist');
+		await page.goto(`${baseUrl()}/configurations`);
+		await page.getByLabel('E-mail address', { exact: true }).fill(account.email);
+		await page.getByLabel('Password').fill(account.password);
+		await page.getByRole('button', { name: 'Sign in' }).click();
+		await page.waitForSelector('[data-testid="configuration-table"]');
+		await page.getByRole('link', { name: 'ET-1 model clean wing' }).click();
+		await page.locator('[data-testid="save"]').waitFor();
+		// A bad row is refused with its line number.
+		await page.getByLabel('section table name').fill('demo section');
+		await page.getByLabel('section table rows').fill('alpha\tcl\n-10\t-0.9\n0\t0.2\n-2\t0.1\n');
+		await page.getByRole('button', { name: 'Add or replace table' }).click();
+		expect(await page.getByTestId('section-table-problem').textContent()).toMatch(/line 4: α -2° does not increase/);
+		// Invented demo section: straight line cl = 2π(α + 1°)·π/180 up to 12°, then a rounded peak and a fall.
+		const rows = ['alpha [deg]\tcl'];
+		for (let a = -16; a <= 24; a += 1) {
+			const lin = 2 * Math.PI * ((a + 1) * Math.PI) / 180;
+			const cl = a <= 12 ? lin : 2 * Math.PI * (Math.PI / 180) * (13 + (a - 12) - (a - 12) ** 2 / 10);
+			rows.push(`${a}\t${cl.toFixed(5)}`);
+		}
+		await page.getByLabel('section table rows').fill(rows.join('\n'));
+		await page.getByRole('button', { name: 'Add or replace table' }).click();
+		await page.getByTestId('section-table-chart').waitFor();
+		expect(await page.getByTestId('section-tables').textContent()).toContain('41');
+		expect(await page.getByTestId('section-table-chart').getByTestId('chart-legend').textContent()).toContain('demo section (table points)');
+		// No station uses it yet: no nonlinear preview.
+		expect(await page.getByTestId('nonlinear-preview').count()).toBe(0);
+		const stationCount = await page.locator('[data-testid="station-table"] tbody tr').count();
+		for (let i = 0; i < stationCount; i++) {
+			const sel = page.getByLabel(`station ${i} section table`);
+			if (await sel.count()) await sel.selectOption('demo section');
+		}
+		await expect.poll(async () => page.getByTestId('nonlinear-preview').textContent()).toMatch(/CL \d\.\d+/);
+		expect(await page.getByTestId('section-tables').textContent()).toMatch(/used by stations[\s\S]*0, 1/);
+		await page.screenshot({ path: 'test-results/configuration-section-table.png', fullPage: true });
+		await context.close();
+	});
+
 	it('shows a program manager the configuration read-only', async () => {
 		const context = await browser.newContext();
 		const page = await context.newPage();
