@@ -15,7 +15,7 @@ import { baseUrl } from '../support/env';
 import { testAddress } from '../support/session';
 
 let C: SummaryCampaign;
-const q = <T>(sql: string, replacements: Record<string, unknown>) => getSequelize().query<T>(sql, { replacements, type: QueryTypes.SELECT });
+const q = <T extends object>(sql: string, replacements: Record<string, unknown>) => getSequelize().query<T>(sql, { replacements, type: QueryTypes.SELECT });
 
 async function download(path: string, token = C.tokens.program_manager) {
 	const res = await fetch(`${baseUrl()}/api/v1${path}`, { headers: { authorization: `Bearer ${token}`, 'x-forwarded-for': testAddress() } });

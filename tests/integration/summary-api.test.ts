@@ -13,7 +13,7 @@ import { baseUrl } from '../support/env';
 let C: SummaryCampaign;
 let S: any;
 
-const q = <T>(sql: string, replacements: Record<string, unknown>) => getSequelize().query<T>(sql, { replacements, type: QueryTypes.SELECT });
+const q = <T extends object>(sql: string, replacements: Record<string, unknown>) => getSequelize().query<T>(sql, { replacements, type: QueryTypes.SELECT });
 
 beforeAll(async () => {
 	C = await buildSummaryCampaign();

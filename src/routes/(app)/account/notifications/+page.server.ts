@@ -1,5 +1,6 @@
 import { requireCapability } from '$lib/server/auth/guard';
 import * as notifications from '$lib/server/notifications';
+import { clientAddress } from '$lib/server/auth/request';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load = (async ({ locals }) => {
@@ -17,7 +18,7 @@ export const actions = {
 		const user = requireCapability(event.locals, 'ownAccount', '/account/notifications');
 		const form = await event.request.formData();
 		const prefs = Object.fromEntries(notifications.NOTIFICATION_KINDS.map((k) => [k, form.get(k) === 'on'])) as notifications.Preferences;
-		await notifications.setPreferences({ id: user.id, email: user.email }, prefs, { requestId: event.locals.requestId, ip: event.getClientAddress() });
+		await notifications.setPreferences({ id: user.id, email: user.email }, prefs, { requestId: event.locals.requestId, ip: clientAddress(event) });
 		return { ok: true, message: 'Saved.' };
 	}
 } satisfies Actions;
