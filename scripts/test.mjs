@@ -4,7 +4,8 @@
 // printed is the runner's summary.
 import { existsSync, readFileSync, rmSync, mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { spawnSync } from 'node:child_process';
+import { spawn } from 'node:child_process';
+import { once } from 'node:events';
 import { ensureDependencies, step, run, build, startChild, waitForHttp, mailEnv, root, acquireTestLock } from './lib/setup.mjs';
 
 await acquireTestLock(join(root, '.data', 'npm-test.lock'));
@@ -86,12 +87,16 @@ try {
 
 	step('Running the test suite (Vitest: unit, integration, e2e)');
 	const jsonFile = join(resultsDir, 'vitest.json');
-	const vitest = spawnSync(
+	// Asynchronous on purpose: while Vitest runs, this process must keep
+	// draining the server's and fakes' output pipes into their logs (a full
+	// pipe would block the server, and its log would be lost).
+	const vitest = spawn(
 		'npx',
 		['vitest', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${jsonFile}`, ...process.argv.slice(2)],
 		{ cwd: root, env, stdio: 'inherit' }
 	);
-	exitCode = vitest.status ?? 1;
+	const [code] = await once(vitest, 'exit');
+	exitCode = code ?? 1;
 	if (existsSync(jsonFile)) {
 		const report = JSON.parse(readFileSync(jsonFile, 'utf8'));
 		const failed = report.numFailedTests + (report.numRuntimeErrorTestSuites ?? 0);
@@ -103,6 +108,7 @@ try {
 	}
 } finally {
 	for (const child of children) child.kill('SIGTERM');
+	await Promise.all(children.map((child) => (child.exitCode === null ? once(child, 'exit') : null)));
 }
 console.log(summary);
 process.exit(exitCode);

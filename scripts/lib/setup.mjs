@@ -65,6 +65,7 @@ export function startChild(name, command, args, { env, ready, logFile, timeoutMs
 		};
 		child.stdout.on('data', onData);
 		child.stderr.on('data', onData);
+		child.on('close', () => log.end());
 		child.on('exit', (code) => {
 			clearTimeout(timer);
 			if (seen !== null) reject(new Error(`${name} exited with code ${code} before it was ready; see ${logFile}\n${seen.slice(-2000)}`));
