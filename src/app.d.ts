@@ -13,6 +13,8 @@ declare global {
 			requestId: string;
 			/** The signed-in person, or null for an anonymous request. */
 			user: { id: string; name: string | null; email: string; role: Role } | null;
+			/** Set when the database was unreachable during this request (answered 503). */
+			databaseUnavailable?: boolean;
 		}
 		// interface PageData {}
 		// interface PageState {}

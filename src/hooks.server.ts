@@ -8,8 +8,10 @@ import * as tokens from '$lib/server/auth/tokens';
 import * as signInRules from '$lib/server/auth/sign-in';
 import * as links from '$lib/server/auth/links';
 import * as mail from '$lib/server/mail';
+import * as notifications from '$lib/server/notifications';
 import { logRequests } from '$lib/server/log';
 import { securityHeaders } from '$lib/server/security-headers';
+import { isDatabaseUnavailable } from '$lib/server/db/errors';
 
 /** Paths anyone may reach without signing in. */
 const PUBLIC_PATHS = [
@@ -32,6 +34,8 @@ export const init: ServerInit = async () => {
 		mail.deliverDue().catch((err) => console.error('mail retry:', err instanceof Error ? err.message : err));
 	}, MAIL_RETRY_INTERVAL_MS);
 	timer.unref();
+	// Campaign digests on a schedule (off unless SPANLINE_DIGEST_INTERVAL_HOURS > 0).
+	notifications.startDigestScheduler();
 };
 
 const requestId: Handle = async ({ event, resolve }) => {
@@ -39,6 +43,32 @@ const requestId: Handle = async ({ event, resolve }) => {
 	event.locals.user = null;
 	const response = await resolve(event);
 	response.headers.set('x-request-id', event.locals.requestId);
+	return response;
+};
+
+const DB_DOWN_MESSAGE = 'The database is not reachable right now; nothing was changed. Try again in a moment.';
+
+/**
+ * A database outage is a 503, not a 500, wherever it surfaces: thrown by a
+ * later hook (token and session look-ups) or by a load, action or endpoint
+ * (reported through handleError, which marks the request).
+ */
+const databaseOutage: Handle = async ({ event, resolve }) => {
+	let response: Response;
+	try {
+		response = await resolve(event);
+	} catch (err) {
+		if (!isDatabaseUnavailable(err)) throw err;
+		event.locals.databaseUnavailable = true;
+		response = event.url.pathname.startsWith('/api/')
+			? apiError(503, 'database_unavailable', DB_DOWN_MESSAGE)
+			: new Response(DB_DOWN_MESSAGE, { status: 503, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+	}
+	if (event.locals.databaseUnavailable && response.status === 500) {
+		if (event.url.pathname.startsWith('/api/')) return apiError(503, 'database_unavailable', DB_DOWN_MESSAGE);
+		return new Response(response.body, { status: 503, headers: response.headers });
+	}
+	if (event.locals.databaseUnavailable) response.headers.set('retry-after', '5');
 	return response;
 };
 
@@ -104,9 +134,13 @@ const gate: Handle = async ({ event, resolve }) => {
 
 // logRequests right after requestId so every later line carries the request id;
 // securityHeaders wraps every response the rest of the sequence returns.
-export const handle: Handle = sequence(requestId, logRequests, securityHeaders, linkCheck, authHandle, identify, gate);
+export const handle: Handle = sequence(requestId, logRequests, securityHeaders, databaseOutage, linkCheck, authHandle, identify, gate);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
+	if (isDatabaseUnavailable(error)) {
+		event.locals.databaseUnavailable = true;
+		return { message: DB_DOWN_MESSAGE, code: 'database_unavailable', requestId: event.locals.requestId };
+	}
 	if (status !== 404) console.error(`[${event.locals.requestId}] ${status} ${event.url.pathname}:`, error);
 	return { message: status === 404 ? 'Page not found.' : message, requestId: event.locals.requestId };
 };

@@ -7,6 +7,7 @@ import './pg-types';
 
 // Model classes and their JSON column types, initModels, authAdapterModels.
 export * from './models';
+export * from './errors';
 
 let instance: Sequelize | null = null;
 
