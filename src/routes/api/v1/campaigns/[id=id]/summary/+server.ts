@@ -1,15 +1,12 @@
 import { denyApi } from '$lib/server/auth/guard';
 import { apiError } from '$lib/server/http';
 import * as summary from '$lib/server/summary';
-import { startDigestScheduler } from '$lib/server/notifications';
 import type { RequestHandler } from './$types';
 
 /** GET — the campaign summary: run counts, configuration table, trends, repeatability, worst offenders, text (read). */
 export const GET: RequestHandler = async ({ locals, params }) => {
 	const denied = denyApi(locals, 'read');
 	if (denied) return denied;
-	// Lazily, in case hooks.server.ts does not start it (no-op when off or running).
-	startDigestScheduler();
 	let body: string;
 	try {
 		body = await summary.summaryJson(Number(params.id));
