@@ -81,12 +81,24 @@ function deliverSafely(id: number): Promise<SendResult> {
 	});
 }
 
-/** Try one queued message now. */
+/** How long one sender holds a message it is delivering before another may retry it. */
+const CLAIM_SECONDS = 120;
+
+/**
+ * Try one queued message now. The message is first claimed with a lease
+ * (next_attempt_at pushed ahead in one UPDATE), so two app instances — or the
+ * retry timer and an immediate send — never deliver the same message twice.
+ */
 export async function deliver(id: number): Promise<SendResult> {
 	const { MailOutbox } = getModels();
+	const [claimed] = await MailOutbox.update(
+		{ nextAttemptAt: new Date(Date.now() + CLAIM_SECONDS * 1000) },
+		{ where: { id, status: 'queued', nextAttemptAt: { [Op.lte]: new Date() } } }
+	);
 	const row = await MailOutbox.findByPk(id);
 	if (!row) throw new Error(`mail ${id} not found`);
 	if (row.status === 'sent') return { id, status: 'sent' };
+	if (claimed === 0) return { id, status: row.status === 'failed' ? 'failed' : 'queued' };
 	const attempts = row.attempts + 1;
 	try {
 		const info = await transport().sendMail({
