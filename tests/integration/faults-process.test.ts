@@ -166,7 +166,7 @@ describe('SIGKILL in the middle of a large import', () => {
 		expect(await rowsOf('K-1')).toEqual({ runs: 0, files: 0, samples: 0, orphan_samples: 0, idle_in_tx: 0 });
 
 		server = await startServer(port);
-		const again = await upload(port, await tokenOn(port), file, 'K-1', 'big-run.csv');
+		const again = await upload(port, await tokenOn(port), new Uint8Array(file), 'K-1', 'big-run.csv');
 		const text = await again.text();
 		expect(again.status, text.slice(0, 300) + logged(port, text)).toBe(201);
 		expect(await rowsOf('K-1')).toMatchObject({ runs: 1, files: 1, samples: N, orphan_samples: 0 });

@@ -55,7 +55,7 @@ function upload(c: Pick<HostileCase, 'fileName' | 'body' | 'query' | 'headers'>,
 	const query = new URLSearchParams({ name: c.fileName, configurationId: String(configurationId), runNumber, ...(c.query ?? {}) });
 	return fetch(`${origin}/api/v1/campaigns/${campaignId}/runs?${query}`, {
 		method: 'POST',
-		body: c.body,
+		body: new Uint8Array(c.body),
 		headers: { authorization: `Bearer ${token}`, 'content-type': 'application/octet-stream', ...(c.headers ?? {}) },
 		signal: AbortSignal.timeout(60_000)
 	});

@@ -61,7 +61,7 @@ afterAll(async () => {
 
 function upload(name: string, body: Buffer | string, params: Record<string, string> = {}) {
 	const sp = new URLSearchParams({ name, ...params });
-	return fetch(`${url}/api/v1/campaigns/${campaignId}/runs?${sp}`, { method: 'POST', body, headers: { authorization: `Bearer ${token}`, 'content-type': 'text/csv' } });
+	return fetch(`${url}/api/v1/campaigns/${campaignId}/runs?${sp}`, { method: 'POST', body: typeof body === 'string' ? body : new Uint8Array(body), headers: { authorization: `Bearer ${token}`, 'content-type': 'text/csv' } });
 }
 
 describe('S3 storage backend', () => {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { biotSavartSegment, biotSavartSemiInfinite, solveHorseshoe, horseshoeDownwash, type Vec3 } from '$lib/aero/horseshoe';
 import { solveLiftingLine } from '$lib/aero/lifting-line';
-import { taperedWing } from '$lib/aero/planform';
+import { taperedWing, type Wing } from '$lib/aero/planform';
 
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
 
@@ -41,10 +41,10 @@ describe('single horseshoe: downwash grows without bound toward the tips (Anders
 });
 
 describe('many horseshoes converge to the Fourier lifting-line solution (aero-checks.md)', () => {
-	const cases = [
+	const cases: [string, Wing][] = [
 		['rectangular AR 6', taperedWing(6, 6, 1)],
 		['tapered λ = 0.4 AR 8, 2° washout', { span: 8, stations: [{ eta: 0, chord: 1.43 }, { eta: 1, chord: 0.57, twistDeg: -2 }] }]
-	] as const;
+	];
 	it.each(cases)('%s: error in CL and CDi shrinks with N and is < 0.5 % at N = 200', (_n, w) => {
 		const ref = solveLiftingLine(w, { alphaDeg: 5 }, { terms: 120 });
 		const errs = [10, 25, 50, 100, 200].map((count) => {
