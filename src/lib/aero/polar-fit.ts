@@ -11,7 +11,7 @@
  * propagation of that covariance. e = 1/(π·AR·k) (Anderson, *Fundamentals of
  * Aerodynamics*, ch. 5; Kimberlin, ch. 8).
  */
-import { MultivariateLinearRegression, TheilSenRegression } from 'ml-regression';
+import { MultivariateLinearRegression } from 'ml-regression';
 
 const DEG = Math.PI / 180;
 
@@ -24,11 +24,70 @@ export const CONFIDENCE = 0.95;
 /** Standard deviation per median absolute deviation for normal errors (1/Φ⁻¹(0.75)). */
 const ROBUST_SIGMA_PER_MAD = 1.4826;
 
-function median(v: number[]): number {
-	const s = [...v].sort((a, b) => a - b);
+function median(v: ArrayLike<number>): number {
+	const s = Float64Array.from(v).sort();
 	const m = s.length >> 1;
 	return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
 }
+
+/** Lower median (element ⌊(n−1)/2⌋ in order) of the first `len` values, sorting them in place. */
+function lowerMedianInPlace(v: Float64Array, len: number): number {
+	const s = v.subarray(0, len).sort();
+	return s[(len - 1) >> 1];
+}
+
+/** Up to this many points the Theil–Sen slope is the median of all n(n−1)/2 pairwise slopes. */
+export const THEIL_SEN_EXACT_MAX_POINTS = 700;
+/** Pairwise slopes sampled for a Theil–Sen line of more points than THEIL_SEN_EXACT_MAX_POINTS. */
+export const THEIL_SEN_SAMPLED_PAIRS = 250_000;
+
+/**
+ * Theil–Sen line (Sen, JASA 63, 1968): slope = median of the pairwise slopes
+ * over pairs with distinct x, intercept = median of y − slope·x (lower
+ * medians, as ml-regression's TheilSenRegression, which this replaces because
+ * it allocates n² slots: 20,000 points took the server out of heap).
+ *
+ * All pairs cost O(n²) time, so above THEIL_SEN_EXACT_MAX_POINTS the slope is
+ * the median of a fixed number m of pairs drawn at random (fixed seed, so a
+ * reduction is reproducible). A sample median of m draws lies within about
+ * ±1/(2√m) = ±0.1 % in rank of the all-pairs median (binomial standard error
+ * of a sample quantile; common practice, no source for the chosen m), which
+ * only judges the linear range here; the reported slope is least squares.
+ */
+export function theilSenLine(x: ArrayLike<number>, y: ArrayLike<number>): { slope: number; intercept: number } {
+	const n = x.length;
+	let slopes: Float64Array;
+	let count = 0;
+	if (n <= THEIL_SEN_EXACT_MAX_POINTS) {
+		slopes = new Float64Array((n * (n - 1)) / 2);
+		for (let i = 0; i < n; i++) {
+			for (let j = i + 1; j < n; j++) if (x[i] !== x[j]) slopes[count++] = (y[j] - y[i]) / (x[j] - x[i]);
+		}
+	} else {
+		slopes = new Float64Array(THEIL_SEN_SAMPLED_PAIRS);
+		// mulberry32 (a small public-domain 32-bit generator); seeded so the same data give the same line.
+		let state = 0x5eed1234;
+		const rand = () => {
+			state = (state + 0x6d2b79f5) | 0;
+			let t = Math.imul(state ^ (state >>> 15), 1 | state);
+			t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
+			return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+		};
+		for (let tries = 0; count < THEIL_SEN_SAMPLED_PAIRS && tries < 4 * THEIL_SEN_SAMPLED_PAIRS; tries++) {
+			const i = Math.floor(rand() * n);
+			const j = Math.floor(rand() * n);
+			if (x[i] !== x[j]) slopes[count++] = (y[j] - y[i]) / (x[j] - x[i]);
+		}
+	}
+	if (count === 0) throw new Error('Theil–Sen line: the regressor does not vary');
+	const slope = lowerMedianInPlace(slopes, count);
+	const cuts = new Float64Array(n);
+	for (let i = 0; i < n; i++) cuts[i] = y[i] - slope * x[i];
+	return { slope, intercept: lowerMedianInPlace(cuts, n) };
+}
+
+/** Most trimming passes of the linear-range search (each pass is O(n) plus one Theil–Sen line). */
+const MAX_TRIM_PASSES = 200;
 
 // ---------------------------------------------------------------- Student t
 
@@ -281,21 +340,42 @@ export function fitLiftCurve(alphaDeg: ArrayLike<number>, CL: ArrayLike<number>,
 	// the reported slope and its interval come from least squares on that range.
 	let lo = 0;
 	let hi = Math.max(iMax, Math.min(order.length - 1, minPts - 1));
-	let robustResiduals: number[] = [];
+	let robustResiduals = new Float64Array(0);
 	let limit = tol;
-	for (;;) {
-		const idx = order.slice(lo, hi + 1);
-		const xs = idx.map((i) => alphaDeg[i]);
-		const ys = idx.map((i) => CL[i]);
-		const ts = new TheilSenRegression(xs, ys);
-		robustResiduals = ys.map((v, k) => v - (ts.slope * xs[k] + ts.intercept));
-		const mad = median(robustResiduals.map(Math.abs));
+	for (let pass = 0; ; pass++) {
+		const len = hi - lo + 1;
+		const xs = new Float64Array(len);
+		const ys = new Float64Array(len);
+		for (let k = 0; k < len; k++) {
+			xs[k] = alphaDeg[order[lo + k]];
+			ys[k] = CL[order[lo + k]];
+		}
+		const ts = theilSenLine(xs, ys);
+		robustResiduals = new Float64Array(len);
+		const absRes = new Float64Array(len);
+		for (let k = 0; k < len; k++) {
+			robustResiduals[k] = ys[k] - (ts.slope * xs[k] + ts.intercept);
+			absRes[k] = Math.abs(robustResiduals[k]);
+		}
+		const mad = median(absRes);
 		limit = Math.max(tol, OUTLIER_SIGMA * ROBUST_SIGMA_PER_MAD * mad);
-		const rLo = Math.abs(robustResiduals[0]);
-		const rHi = Math.abs(robustResiduals[robustResiduals.length - 1]);
-		if (Math.max(rLo, rHi) <= limit || hi - lo + 1 <= minPts) break;
-		if (rHi >= rLo) hi--;
-		else lo++;
+		const rLo = absRes[0];
+		const rHi = absRes[len - 1];
+		if (Math.max(rLo, rHi) <= limit || len <= minPts || pass >= MAX_TRIM_PASSES) break;
+		// Drop the run of end points beyond the limit at the worse end, then
+		// refit. Short ranges lose one point a pass (each refit can pull the
+		// line back to a neighbour); long ones up to 5 % of the range a pass,
+		// so a long stall region costs a few dozen refits rather than one per
+		// point (common practice, no source for the 5 %).
+		const cap = Math.max(1, Math.floor(len / 20));
+		let drop = 0;
+		if (rHi >= rLo) {
+			while (drop < cap && len - drop > minPts && absRes[len - 1 - drop] > limit) drop++;
+			hi -= Math.max(1, drop);
+		} else {
+			while (drop < cap && len - drop > minPts && absRes[drop] > limit) drop++;
+			lo += Math.max(1, drop);
+		}
 	}
 	const idx = order.slice(lo, hi + 1);
 	const fit = leastSquares(what, idx.map((i) => [alphaDeg[i]]), idx.map((i) => CL[i]));

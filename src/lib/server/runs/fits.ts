@@ -122,6 +122,16 @@ export function meanResponseHalfWidth(xs: readonly number[], s: number, dof: num
 	return t * s * Math.sqrt(1 / n + (x - xbar) ** 2 / sxx);
 }
 
+/** Smallest and largest value by a loop: Math.min(...v) overflows the call stack for a few hundred thousand values. */
+export function extent(v: ArrayLike<number>): [number, number] {
+	let lo = Infinity, hi = -Infinity;
+	for (let i = 0; i < v.length; i++) {
+		if (v[i] < lo) lo = v[i];
+		if (v[i] > hi) hi = v[i];
+	}
+	return [lo, hi];
+}
+
 function linspace(lo: number, hi: number, n = CURVE_SAMPLES): number[] {
 	if (!(hi > lo)) return [lo];
 	return Array.from({ length: n }, (_, i) => lo + ((hi - lo) * i) / (n - 1));
@@ -152,6 +162,7 @@ export function fitReduction(points: readonly FitPoint[], aspectRatio: number | 
 			const c = la.map((p) => p.CL as number);
 			const f = fitLiftCurve(a, c);
 			const xs = f.linearRange.indices.map((i) => a[i]);
+			const [xMin, xMax] = extent(xs);
 			const slope = f.liftSlopePerDeg.value;
 			const intercept = -slope * f.alphaZeroLiftDeg.value;
 			liftCurve = {
@@ -163,12 +174,12 @@ export function fitReduction(points: readonly FitPoint[], aspectRatio: number | 
 				r2: f.r2,
 				residualStd: f.residualStd,
 				dof: f.dof,
-				linearRange: { alphaMinDeg: Math.min(...xs), alphaMaxDeg: Math.max(...xs), points: f.linearRange.indices.map((i) => la[i].idx).sort((x, y) => x - y) },
+				linearRange: { alphaMinDeg: xMin, alphaMaxDeg: xMax, points: f.linearRange.indices.map((i) => la[i].idx).sort((x, y) => x - y) },
 				CLmax: f.CLmax,
 				alphaAtCLmaxDeg: f.alphaAtCLmaxDeg,
 				CLmaxAtEdge: f.CLmaxAtEdge,
 				outliers: mapOutliers(f.outliers, la.map((p) => p.idx)),
-				curve: linspace(Math.min(...xs), Math.max(...xs)).map((x) => {
+				curve: linspace(xMin, xMax).map((x) => {
 					const y = intercept + slope * x;
 					const h = meanResponseHalfWidth(xs, f.residualStd, f.dof, x);
 					return { alphaDeg: x, CL: y, lower: y - h, upper: y + h };
@@ -191,6 +202,7 @@ export function fitReduction(points: readonly FitPoint[], aspectRatio: number | 
 		try {
 			const f = fitParabolicPolar(cls, cds, AR ?? undefined);
 			const x2 = cls.map((c) => c * c);
+			const [clMin, clMax] = extent(cls);
 			polar = {
 				status: 'fitted',
 				n: pc.length,
@@ -202,7 +214,7 @@ export function fitReduction(points: readonly FitPoint[], aspectRatio: number | 
 				residualStd: f.residualStd,
 				dof: f.dof,
 				outliers: mapOutliers(f.outliers, idxs),
-				curve: linspace(Math.min(...cls), Math.max(...cls)).map((cl) => {
+				curve: linspace(clMin, clMax).map((cl) => {
 					const y = f.CD0.value + f.k.value * cl * cl;
 					const h = meanResponseHalfWidth(x2, f.residualStd, f.dof, cl * cl);
 					return { CL: cl, CD: y, lower: y - h, upper: y + h };

@@ -21,7 +21,7 @@ import { bodyToWind, transferMoments, tareAt, windCoefficients, windToBody, type
 import { correctTunnelPoint, type TunnelSettings, type CorrectionContributions } from '../../aero/tunnel-corrections';
 import { detectSteadySegments, reduceFlightPoint, type SteadySegment } from '../../aero/flight-reduction';
 import type { ReductionSettingsInput } from './schemas';
-import { coefficientPointUncertainty, fitReduction, flightPointUncertainty, resolveUncertainty, tunnelPointUncertainty, type PointUncertainty } from './fits';
+import { coefficientPointUncertainty, extent, fitReduction, flightPointUncertainty, resolveUncertainty, tunnelPointUncertainty, type PointUncertainty } from './fits';
 
 const DEG = Math.PI / 180;
 
@@ -207,7 +207,7 @@ export function reduceTunnel(cols: Columns, ctx: ReduceContext, s: ReductionSett
 	let maskell: TunnelSettings['maskell'];
 	if (corr.enabled && corr.settings?.wakeMethod === 'maskell') {
 		const cds = raws.map((r) => r.CD).filter((x): x is number => x !== null);
-		const CD0 = corr.maskellCD0 ?? (cds.length ? Math.min(...cds) : 0);
+		const CD0 = corr.maskellCD0 ?? (cds.length ? extent(cds)[0] : 0);
 		const AR = ref.span && ref.area ? (ref.span * ref.span) / ref.area : undefined;
 		if (AR) maskell = { CD0, aspectRatio: AR, e: corr.oswald ?? 1 };
 		else {
