@@ -12,6 +12,7 @@ import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import { mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { randomBytes } from 'node:crypto';
+import { parse } from 'csv-parse/sync';
 import type { Browser, Page } from 'playwright-core';
 import { launchChromium } from '../support/browser';
 import { baseUrl } from '../support/env';
@@ -97,15 +98,23 @@ describe('the comparison page', () => {
 
 		// The lift curve's CSV: 21 measured points and the predicted curve, the same numbers the API gives.
 		const [download] = await Promise.all([page.waitForEvent('download'), lift.getByRole('button', { name: /as CSV/ }).click()]);
-		const csv = readFileSync((await download.path())!, 'utf8').trim().split(/\r\n/);
-		expect(csv[0]).toBe('series,α (deg),CL,CL lower,CL upper');
-		const measuredRows = csv.filter((l) => l.startsWith(`run ${clean.runNumber} measured,`));
-		const predictedRows = csv.filter((l) => l.startsWith(`run ${clean.runNumber} predicted`));
+		const csv: string[][] = parse(readFileSync((await download.path())!, 'utf8'), { bom: true });
+		expect(csv[0]).toEqual(['series', 'α (deg)', 'CL', 'CL lower', 'CL upper']);
+		const measuredRows = csv.filter((r) => r[0] === `run ${clean.runNumber} measured`);
+		const predictedRows = csv.filter((r) => /^run .* predicted \(linear, v\d+\)$/.test(r[0]));
+		const bandRows = csv.filter((r) => r[0].startsWith(`run ${clean.runNumber} tolerance`));
 		expect(measuredRows).toHaveLength(21);
 		expect(predictedRows.length).toBeGreaterThan(20);
+		expect(bandRows).toHaveLength(predictedRows.length);
 		const api = await (await page.request.get(`${baseUrl()}/api/v1/correlation/runs/${clean.id}`)).json();
 		const first = api.points.find((p: { excluded: boolean }) => !p.excluded);
-		expect(measuredRows[0]).toBe(`run ${clean.runNumber} measured,${first.alphaDeg},${first.CL},,`);
+		expect(measuredRows[0].slice(1, 3).map(Number)).toEqual([first.alphaDeg, first.CL]);
+		// The band is the predicted line ± the tolerance.
+		const t = Number(legend[0].match(/±([\d.]+)/)![1]);
+		bandRows.forEach((r, i) => {
+			expect(Number(r[3])).toBeCloseTo(Number(predictedRows[i][2]) - t, 12);
+			expect(Number(r[4])).toBeCloseTo(Number(predictedRows[i][2]) + t, 12);
+		});
 		// The PNG export is a real PNG picture.
 		const [png] = await Promise.all([page.waitForEvent('download'), lift.getByRole('button', { name: /as PNG/ }).click()]);
 		const bytes = readFileSync((await png.path())!);
@@ -127,9 +136,9 @@ describe('the comparison page', () => {
 		expect(legend).toContain(`measured ΔCL (run ${flap.runNumber} − run ${clean.runNumber})`);
 		// Same measured data under both configurations: the measured increment is zero, the predicted one is the flap's.
 		const [download] = await Promise.all([page.waitForEvent('download'), inc.getByRole('button', { name: /as CSV/ }).click()]);
-		const lines = readFileSync((await download.path())!, 'utf8').trim().split(/\r\n/).slice(1);
-		const measured = lines.filter((l) => l.startsWith('measured')).map((l) => Number(l.split(',')[2]));
-		const predicted = lines.filter((l) => l.startsWith('predicted')).map((l) => Number(l.split(',')[2]));
+		const lines: string[][] = parse(readFileSync((await download.path())!, 'utf8'), { bom: true }).slice(1);
+		const measured = lines.filter((l) => l[0].startsWith('measured')).map((l) => Number(l[2]));
+		const predicted = lines.filter((l) => l[0].startsWith('predicted')).map((l) => Number(l[2]));
 		expect(measured).toHaveLength(21);
 		measured.forEach((v) => expect(Math.abs(v)).toBeLessThan(1e-9));
 		expect(predicted.length).toBeGreaterThan(10);
