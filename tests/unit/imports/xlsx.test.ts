@@ -1,4 +1,4 @@
-import { crc32, deflateRawSync } from 'node:zlib';
+import { crc32, deflateRawSync, inflateRawSync } from 'node:zlib';
 import * as XLSX from '@e965/xlsx';
 import { describe, expect, it } from 'vitest';
 import { inspectZip, listSheets, parseSpreadsheetInWorker, readSpreadsheet } from '../../../src/lib/server/imports/xlsx';
@@ -190,4 +190,99 @@ describe('XLSX worker', () => {
 		expect(e.code).toBe('worker_memory');
 		expect(e.message).toBe('reading the spreadsheet needed more than the 16 MB memory limit; it is too large (send long data as CSV)');
 	}, 60_000);
+});
+
+describe('XLSX entry checksums', () => {
+	/** [start, end) of an entry's compressed data, from its central-directory record (APPNOTE §4.3.12). */
+	function entryData(buf: Buffer, wanted: string): [number, number] {
+		let eocd = buf.length - 22;
+		while (buf.readUInt32LE(eocd) !== 0x06054b50) eocd--;
+		let p = buf.readUInt32LE(eocd + 16);
+		for (let k = 0; k < buf.readUInt16LE(eocd + 10); k++) {
+			const nameLen = buf.readUInt16LE(p + 28);
+			const name = buf.toString('utf8', p + 46, p + 46 + nameLen);
+			if (name === wanted) {
+				const local = buf.readUInt32LE(p + 42);
+				const start = local + 30 + buf.readUInt16LE(local + 26) + buf.readUInt16LE(local + 28);
+				return [start, start + buf.readUInt32LE(p + 20)];
+			}
+			p += 46 + nameLen + buf.readUInt16LE(p + 30) + buf.readUInt16LE(p + 32);
+		}
+		throw new Error(`no entry ${wanted}`);
+	}
+
+	it('refuses a bit-flipped copy of tunnel-two-sheets.xlsx: 422 damaged_file naming the entry', async () => {
+		// The fixture stores its entries uncompressed (ZIP method 0), so only the CRC-32 can notice the flip.
+		const good = fixture('tunnel-two-sheets.xlsx');
+		const name = 'xl/worksheets/sheet1.xml';
+		const [from, to] = entryData(good, name);
+		const bad = Buffer.from(good);
+		bad[(from + to) >> 1] ^= 0xff;
+		const e = await importError(inspectZip(bad));
+		expect(e.status).toBe(422);
+		expect(e.code).toBe('damaged_file');
+		expect(e.message).toContain(`'${name}'`);
+		expect(e.message).toContain('CRC-32');
+		await expect(inspectZip(good)).resolves.toBeInstanceOf(Array);
+		await expect(readRunFile({ name: 'run.xlsx', buffer: bad, kind: 'tunnel', sheet: 'Run 14', worker: false })).rejects.toMatchObject({ status: 422, code: 'damaged_file' });
+	});
+
+	it('refuses a deflated entry whose flipped byte still inflates', async () => {
+		const ws = XLSX.utils.aoa_to_sheet([['alpha', 'CL'], ...Array.from({ length: 200 }, (_, i) => [i / 10, 0.1 * (i / 10) + 0.2])]);
+		const good = (() => {
+			const wb = XLSX.utils.book_new();
+			XLSX.utils.book_append_sheet(wb, ws, 'Run');
+			return XLSX.write(wb, { type: 'buffer', bookType: 'xlsx', compression: true }) as Buffer;
+		})();
+		const name = 'xl/worksheets/sheet1.xml';
+		const [from, to] = entryData(good, name);
+		const size = inflateRawSync(good.subarray(from, to)).length;
+		// The first byte whose inversion still inflates to the same size: inflating alone cannot catch it.
+		let bad: Buffer | null = null;
+		for (let at = from + 8; at < to && !bad; at++) {
+			const b = Buffer.from(good);
+			b[at] ^= 0xff;
+			try {
+				if (inflateRawSync(b.subarray(from, to)).length === size) bad = b;
+			} catch {
+				/* this flip breaks the deflate stream; try the next byte */
+			}
+		}
+		expect(bad).not.toBeNull();
+		const e = await importError(inspectZip(bad!));
+		expect(e.code).toBe('damaged_file');
+		expect(e.message).toContain(`'${name}'`);
+	});
+
+	it('refuses a stored (uncompressed) entry whose bytes changed', async () => {
+		const data = Buffer.from('<workbook/>');
+		const name = Buffer.from('xl/workbook.xml');
+		const crc = crc32(data);
+		const lh = Buffer.alloc(30);
+		lh.writeUInt32LE(0x04034b50, 0);
+		lh.writeUInt32LE(crc, 14);
+		lh.writeUInt32LE(data.length, 18);
+		lh.writeUInt32LE(data.length, 22);
+		lh.writeUInt16LE(name.length, 26);
+		const ch = Buffer.alloc(46);
+		ch.writeUInt32LE(0x02014b50, 0);
+		ch.writeUInt32LE(crc, 16);
+		ch.writeUInt32LE(data.length, 20);
+		ch.writeUInt32LE(data.length, 24);
+		ch.writeUInt16LE(name.length, 28);
+		const cd = Buffer.concat([ch, name]);
+		const end = Buffer.alloc(22);
+		end.writeUInt32LE(0x06054b50, 0);
+		end.writeUInt16LE(1, 8);
+		end.writeUInt16LE(1, 10);
+		end.writeUInt32LE(cd.length, 12);
+		end.writeUInt32LE(30 + name.length + data.length, 16);
+		const ok = Buffer.concat([lh, name, data, cd, end]);
+		await expect(inspectZip(ok)).resolves.toHaveLength(1);
+		const bad = Buffer.from(ok);
+		bad[30 + name.length + 1] ^= 0x01;
+		const e = await importError(inspectZip(bad));
+		expect(e.code).toBe('damaged_file');
+		expect(e.message).toContain("'xl/workbook.xml'");
+	});
 });

@@ -44,6 +44,7 @@ export type ImportErrorCode =
 	| 'too_large'
 	| 'csv_syntax'
 	| 'xlsx_invalid'
+	| 'damaged_file'
 	| 'xlsx_bomb'
 	| 'xlsx_range'
 	| 'sheet_missing'

@@ -18,7 +18,7 @@
 import { createRequire } from 'node:module';
 import { Worker } from 'node:worker_threads';
 import { promisify } from 'node:util';
-import { inflateRaw } from 'node:zlib';
+import { crc32, inflateRaw } from 'node:zlib';
 import * as XLSX from '@e965/xlsx';
 import { ImportError, fmtCount, resolveLimits, type ImportLimits } from './errors';
 import { detectLayout, type DataRow, type TableHead } from './layout';
@@ -127,6 +127,7 @@ export async function inspectZip(input: Uint8Array, limits?: Partial<ImportLimit
 	for (let k = 0; k < count; k++) {
 		if (p + 46 > eocd || buf.readUInt32LE(p) !== 0x02014b50) throw invalid('the XLSX file is damaged: bad ZIP directory entry');
 		const method = buf.readUInt16LE(p + 10);
+		const crc = buf.readUInt32LE(p + 16);
 		const compressedSize = buf.readUInt32LE(p + 20);
 		const uncompressedSize = buf.readUInt32LE(p + 24);
 		const nameLen = buf.readUInt16LE(p + 28);
@@ -150,9 +151,11 @@ export async function inspectZip(input: Uint8Array, limits?: Partial<ImportLimit
 		const start = local + 30 + buf.readUInt16LE(local + 26) + buf.readUInt16LE(local + 28);
 		if (start + compressedSize > buf.length) throw invalid(`the XLSX file is truncated: entry '${name}' is cut short`);
 		if (method !== 0 && method !== 8) throw invalid(`the XLSX entry '${name}' uses ZIP method ${method}, which is not supported`);
+		let data: Buffer;
 		if (method === 8) {
 			try {
-				await inflateRawAsync(buf.subarray(start, start + compressedSize), { maxOutputLength: Math.max(1, uncompressedSize) });
+				// Capped at the declared size, which the limits above have bounded.
+				data = await inflateRawAsync(buf.subarray(start, start + compressedSize), { maxOutputLength: Math.max(1, uncompressedSize) });
 			} catch (err) {
 				const code = (err as { code?: string }).code;
 				if (code === 'ERR_BUFFER_TOO_LARGE' || err instanceof RangeError) {
@@ -164,6 +167,12 @@ export async function inspectZip(input: Uint8Array, limits?: Partial<ImportLimit
 			}
 		} else if (compressedSize !== uncompressedSize) {
 			throw invalid(`the XLSX file is damaged: stored entry '${name}' has inconsistent sizes`);
+		} else data = buf.subarray(start, start + compressedSize);
+		// The central directory's CRC-32 of the uncompressed data (APPNOTE
+		// §4.4.7): a flipped bit that still inflates is caught here.
+		if (data.length !== uncompressedSize || crc32(data) >>> 0 !== crc) {
+			const message = `the XLSX file is damaged: entry '${name}' does not match its CRC-32 checksum (re-export or upload the file again)`;
+			throw new ImportError(422, 'damaged_file', message, [{ message: `entry '${name}'` }]);
 		}
 		entries.push({ name, method, compressedSize, uncompressedSize });
 	}
