@@ -375,8 +375,48 @@ function runNumberFor(q: ImportQuery, f: Prepared, firstRunCell: string | null):
  * Import one file as a new run. Throws RunError (status and details for the
  * API) when nothing was stored.
  */
+/**
+ * Read and drop a request body nobody will use, up to `limit` bytes, so that
+ * a refusal sent before the upload ends reaches the client: a server that
+ * answers and closes mid-upload makes Node's fetch (undici) report a network
+ * error instead of the answer. Past the limit (or when Content-Length already
+ * says so) the body is cancelled and the connection may close.
+ */
+export async function discardBody(body: ReadableStream<Uint8Array> | null | undefined, contentLength: number | null = null, limit = maxUploadBytes()): Promise<void> {
+	if (!body || body.locked) return;
+	const reader = body.getReader();
+	try {
+		if (contentLength !== null && contentLength > limit) return;
+		let size = 0;
+		for (;;) {
+			const r = await reader.read();
+			if (r.done) return;
+			if ((size += r.value.byteLength) > limit) return;
+		}
+	} catch {
+		// the client went away
+	} finally {
+		reader.cancel().catch(() => {});
+	}
+}
+
 export async function importRun(actor: Actor, input: ImportInput, onProgress: (p: ImportProgress) => void = () => {}): Promise<ImportResult> {
-	const { Run, SourceFile, Campaign, Configuration } = getModels();
+	let campaign: CampaignRow;
+	try {
+		campaign = await checkReferences(input);
+	} catch (e) {
+		if (input.body instanceof ReadableStream) await discardBody(input.body, input.contentLength);
+		throw e;
+	}
+	return importChecked(actor, input, campaign, onProgress);
+}
+
+/** The campaign, configuration and referenced runs of an import exist and belong together; throws RunError. */
+/** What the import needs of the campaign row. */
+type CampaignRow = { id: number | string; kind: RunKind; facilityId: number | string | null };
+
+async function checkReferences(input: ImportInput): Promise<CampaignRow> {
+	const { Run, Campaign, Configuration } = getModels();
 	const q = input.query;
 	const campaign = await Campaign.findByPk(input.campaignId);
 	if (!campaign) throw new RunError(404, 'not_found', 'No such campaign.');
@@ -393,6 +433,13 @@ export async function importRun(actor: Actor, input: ImportInput, onProgress: (p
 		if (!r || Number(r.campaignId) !== Number(campaign.id)) throw new RunError(422, 'invalid_reference', `Run ${runId} is not a run of this campaign.`, [{ field, message: 'not in this campaign' }]);
 		if (field === 'tareRunId' && !r.isTare) throw new RunError(422, 'invalid_reference', `Run ${r.runNumber} is not a tare run.`, [{ field, message: 'not a tare run' }]);
 	}
+	return campaign;
+}
+
+async function importChecked(actor: Actor, input: ImportInput, campaign: CampaignRow, onProgress: (p: ImportProgress) => void): Promise<ImportResult> {
+	const { Run, SourceFile } = getModels();
+	const q = input.query;
+	const kind: RunKind = q.kind ?? campaign.kind;
 	if (!input.body) throw new RunError(422, 'empty_file', `'${q.name}' is empty: there is nothing to import.`, [{ file: q.name, message: 'the request has no body (the file has no bytes)' }]);
 	const given = input.mappingHeader ? decodeMappingHeader(input.mappingHeader) : null;
 
@@ -551,7 +598,10 @@ export async function importRun(actor: Actor, input: ImportInput, onProgress: (p
 		if (copy) await copy.abort();
 		if (transaction) await transaction.rollback().catch(() => {});
 		if (stored) await stored.discard();
-		if (!(e instanceof RunError && e.status === 413)) await tap.drain();
+		// Any refusal (a 413 for a long header line included) waits for the
+		// rest of the body, up to the upload limit, so the client reads the
+		// answer; only an upload over the limit is cut off.
+		await tap.drain();
 		if (e instanceof ImportError) throw fromImportError(e);
 		throw e;
 	} finally {

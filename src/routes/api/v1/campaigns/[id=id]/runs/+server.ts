@@ -3,7 +3,11 @@ import { denyApi } from '$lib/server/auth/guard';
 import * as runs from '$lib/server/runs';
 import { importQuerySchema, listRunsQuerySchema } from '$lib/server/runs/schemas';
 import { actorOf, errorBody, failure, invalid, queryObject } from '$lib/server/runs/http';
+import { discardBody } from '$lib/server/runs/import';
 import type { RequestHandler } from './$types';
+
+/** A caller refused before auth or with a bad query gets its answer after at most this much of the body is read and dropped. */
+const REFUSED_DRAIN_BYTES = 1024 * 1024;
 
 /** GET /api/v1/campaigns/{id}/runs?state=&kind=&limit=&offset= */
 export const GET: RequestHandler = async ({ locals, params, url }) => {
@@ -20,18 +24,26 @@ export const GET: RequestHandler = async ({ locals, params, url }) => {
  */
 export const POST: RequestHandler = async (event) => {
 	const { locals, params, url, request } = event;
-	const denied = denyApi(locals, 'importRuns');
-	if (denied) return denied;
-	const q = importQuerySchema.safeParse(queryObject(url));
-	if (!q.success) return invalid(q.error, 'query');
-	const actor = actorOf(event);
 	const len = request.headers.get('content-length');
+	const contentLength = len !== null && /^\d+$/.test(len) ? Number(len) : null;
+	// Drain before an early answer, so Node's fetch reads it instead of a reset (runs/import discardBody).
+	const denied = denyApi(locals, 'importRuns');
+	if (denied) {
+		await discardBody(request.body, contentLength, REFUSED_DRAIN_BYTES);
+		return denied;
+	}
+	const q = importQuerySchema.safeParse(queryObject(url));
+	if (!q.success) {
+		await discardBody(request.body, contentLength, REFUSED_DRAIN_BYTES);
+		return invalid(q.error, 'query');
+	}
+	const actor = actorOf(event);
 	const input: runs.ImportInput = {
 		campaignId: Number(params.id),
 		query: q.data,
 		mappingHeader: request.headers.get('x-spanline-mapping'),
 		body: request.body,
-		contentLength: len !== null && /^\d+$/.test(len) ? Number(len) : null,
+		contentLength,
 		contentType: request.headers.get('content-type')
 	};
 	const finish = async (r: runs.ImportResult) => ({ run: await runs.getRun(r.runId, locals.user!.role), reductionVersion: r.reductionVersion, warnings: r.warnings });
