@@ -17,7 +17,10 @@ declare global {
 			databaseUnavailable?: boolean;
 		}
 		// interface PageData {}
-		// interface PageState {}
+		interface PageState {
+			/** Notes of an import, handed from the upload page to the run page. */
+			importWarnings?: string[];
+		}
 		// interface Platform {}
 	}
 }
