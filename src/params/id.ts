@@ -1,4 +1,5 @@
 import type { ParamMatcher } from '@sveltejs/kit';
+import { parseId } from '$lib/ids';
 
 /** Database ids are positive integers; anything else is a 404 before any query. */
-export const match = ((param: string): boolean => /^[1-9][0-9]{0,17}$/.test(param)) satisfies ParamMatcher;
+export const match = ((param: string): boolean => parseId(param) !== null) satisfies ParamMatcher;

@@ -3,13 +3,19 @@ import { json } from '@sveltejs/kit';
 import { denyApi } from '$lib/server/auth/guard';
 import * as configurations from '$lib/server/configurations';
 import { contextOf, errorResponse, readJson } from '$lib/server/correlation/http';
+import { apiError } from '$lib/server/http';
+import { parseId } from '$lib/ids';
 import type { RequestHandler } from './$types';
 
 /** GET ?campaignId=&allVersions=1 — newest version of each configuration (read). */
 export const GET: RequestHandler = async ({ locals, url }) => {
 	const denied = denyApi(locals, 'read');
 	if (denied) return denied;
-	const campaignId = Number(url.searchParams.get('campaignId')) || undefined;
+	const raw = url.searchParams.get('campaignId');
+	const campaignId = parseId(raw) ?? undefined;
+	if (raw && campaignId === undefined) {
+		return apiError(400, 'invalid', 'campaignId must be a campaign id (a positive integer).', [{ field: 'campaignId', message: 'not an id' }]);
+	}
 	const items = await configurations.list({ campaignId, allVersions: url.searchParams.get('allVersions') === '1' });
 	return json({ items, total: items.length, limit: items.length, offset: 0 });
 };
