@@ -62,8 +62,7 @@ export const ROUTES: RouteCase[] = [
 	{ route: '/(app)/campaigns/[id=id]/summary', method: 'GET', kind: 'page', path: '/campaigns/{campaign}/summary', capability: 'read' },
 	{ route: '/(app)/campaigns/[id=id]/report', method: 'GET', kind: 'page', path: '/campaigns/{campaign}/report', capability: 'read' },
 	{ route: '/(app)/account/notifications', method: 'GET', kind: 'page', path: '/account/notifications', capability: 'ownAccount' },
-	// An empty form turns every kind off for the caller; the page then answers with its result.
-	{ route: '/(app)/account/notifications', method: '?/default', kind: 'action', path: '/account/notifications', capability: 'ownAccount', ok: [200, 303, 400] },
+	{ route: '/(app)/account/notifications', method: '?/default', kind: 'action', path: '/account/notifications', capability: 'ownAccount' },
 	{ route: '/(app)/campaigns/[id=id]/calibration', method: 'GET', kind: 'page', path: '/campaigns/{campaign}/calibration', capability: 'read' },
 	{ route: '/(app)/runs/[id=id]', method: 'GET', kind: 'page', path: '/runs/{run}', capability: 'read' },
 	{ route: '/(app)/compare', method: 'GET', kind: 'page', path: '/compare', capability: 'read' },

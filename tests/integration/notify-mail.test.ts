@@ -18,7 +18,7 @@ async function optOut(person: { email: string; password: string }, keepOn: strin
 	const c = new Client();
 	const res = await c.signIn(person.email, person.password);
 	expect(res.status).toBe(302);
-	const saved = await c.form('/account/notifications', Object.fromEntries(keepOn.map((k) => [k, 'on'])));
+	const saved = await c.form('/account/notifications', { form: 'notification-preferences', ...Object.fromEntries(keepOn.map((k) => [k, 'on'])) });
 	expect([200, 303]).toContain(saved.status);
 	const page = await (await c.get('/account/notifications')).text();
 	for (const k of ['run_reduced', 'tolerance_exceeded', 'campaign_digest']) {
