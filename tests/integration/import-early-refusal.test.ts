@@ -43,7 +43,7 @@ function post(path: string, body: Buffer, auth = true): Promise<Response> {
 	return fetch(`${baseUrl()}${path}`, {
 		method: 'POST',
 		headers: { 'content-type': 'text/csv', ...(auth ? { authorization: `Bearer ${token}` } : {}) },
-		body
+		body: new Uint8Array(body)
 	});
 }
 

@@ -53,8 +53,8 @@ let tunnelConfig: number;
 let flightConfig: number;
 let facilityId: number;
 
-async function q<T>(sql: string, replacements: Record<string, unknown> = {}): Promise<T[]> {
-	return getSequelize().query<T>(sql, { replacements, type: QueryTypes.SELECT });
+async function q<T extends object>(sql: string, replacements: Record<string, unknown> = {}): Promise<T[]> {
+	return getSequelize().query<T>(sql, { replacements, type: QueryTypes.SELECT }) as Promise<T[]>;
 }
 async function insertId(sql: string, replacements: Record<string, unknown>): Promise<number> {
 	const [row] = await q<{ id: string }>(sql + ' RETURNING id', replacements);
