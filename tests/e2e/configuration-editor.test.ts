@@ -10,6 +10,7 @@ import type { Browser } from 'playwright-core';
 import { launchChromium } from '../support/browser';
 import { baseUrl } from '../support/env';
 import { demoAccount } from '../support/session';
+import { signInPageReady } from '../support/browser-session';
 
 describe('configuration editor', () => {
 	let browser: Browser;
@@ -26,6 +27,7 @@ describe('configuration editor', () => {
 		const account = demoAccount('aerodynamicist');
 		await page.goto(`${baseUrl()}/configurations`);
 		expect(new URL(page.url()).pathname).toBe('/signin');
+		await signInPageReady(page);
 		await page.getByLabel('E-mail address', { exact: true }).fill(account.email);
 		await page.getByLabel('Password').fill(account.password);
 		await page.getByRole('button', { name: 'Sign in' }).click();
@@ -79,6 +81,7 @@ describe('configuration editor', () => {
 		const page = await context.newPage();
 		const account = demoAccount('aerodynamicist');
 		await page.goto(`${baseUrl()}/configurations`);
+		await signInPageReady(page);
 		await page.getByLabel('E-mail address', { exact: true }).fill(account.email);
 		await page.getByLabel('Password').fill(account.password);
 		await page.getByRole('button', { name: 'Sign in' }).click();
@@ -120,6 +123,7 @@ describe('configuration editor', () => {
 		const page = await context.newPage();
 		const account = demoAccount('program_manager');
 		await page.goto(`${baseUrl()}/configurations`);
+		await signInPageReady(page);
 		await page.getByLabel('E-mail address', { exact: true }).fill(account.email);
 		await page.getByLabel('Password').fill(account.password);
 		await page.getByRole('button', { name: 'Sign in' }).click();

@@ -8,6 +8,7 @@ import type { Browser } from 'playwright-core';
 import { launchChromium } from '../support/browser';
 import { baseUrl } from '../support/env';
 import { demoAccount } from '../support/session';
+import { signInPageReady } from '../support/browser-session';
 import { ROLES, ROLE_LABELS, can, type Capability, type Role } from '../../src/lib/server/auth/roles';
 
 /** Each navigation link and the capability it needs (as in AppFrame.svelte): add new links here. */
@@ -37,6 +38,7 @@ describe('signing in through the browser', () => {
 			const asked = role === 'admin' ? '/admin/people' : '/account';
 			await page.goto(`${baseUrl()}${asked}`);
 			expect(new URL(page.url()).pathname).toBe('/signin');
+			await signInPageReady(page);
 			await page.getByLabel('E-mail address', { exact: true }).fill(account.email);
 			await page.getByLabel('Password').fill(account.password);
 			await page.getByRole('button', { name: 'Sign in' }).click();

@@ -8,8 +8,17 @@ import { basename } from 'node:path';
 import type { Page } from 'playwright-core';
 import { baseUrl } from './env';
 
+/**
+ * Wait until the sign-in page has hydrated: filled in before that, the fields
+ * can be reset by hydration and the (then empty, required) form never submits.
+ */
+export async function signInPageReady(page: Page): Promise<void> {
+	await page.waitForLoadState('networkidle');
+}
+
 export async function signInInBrowser(page: Page, email: string, password: string): Promise<void> {
 	await page.goto(`${baseUrl()}/signin`);
+	await signInPageReady(page);
 	await page.fill('#email', email);
 	await page.fill('#password', password);
 	await Promise.all([
