@@ -72,6 +72,7 @@ describe('signing in through the browser', () => {
 		const context = await browser.newContext();
 		const page = await context.newPage();
 		await page.goto(`${baseUrl()}/signin`);
+		await signInPageReady(page);
 		// The e-mail field comes first in the tab order.
 		await page.keyboard.press('Tab');
 		await page.keyboard.type('nobody-here@example.test');

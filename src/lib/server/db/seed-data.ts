@@ -162,8 +162,10 @@ export async function seedDemo(sequelize: Sequelize): Promise<SeedResult> {
 		);
 
 		// 1:10 model of a 9.6 m span aircraft: model span 0.96 m keeps span/width at 0.8 in the 1.2 m tunnel.
-		const model = { span: 0.96, rootChord: 0.16, taper: 0.5 };
-		const aircraft = { span: 9.6, rootChord: 1.6, taper: 0.5 };
+		// Root chords chosen so the reference areas match the demo files in fixtures/
+		// (model S = 0.18 m², aircraft S = 16.2 m²; fixtures/scenario.ts).
+		const model = { span: 0.96, rootChord: 0.25, taper: 0.5 };
+		const aircraft = { span: 9.6, rootChord: 2.25, taper: 0.5 };
 		const cleanV1 = await m.Configuration.create(
 			{
 				campaignId: tunnelCampaign.id,
