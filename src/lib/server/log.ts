@@ -110,13 +110,56 @@ export function log(): Logger {
 	return current.getStore() ?? root;
 }
 
-/** Path plus query, with the values of sensitive parameters censored. */
+/**
+ * Route folders whose next path segment is itself a secret: `/invite/<token>`
+ * (src/routes/invite/[token]) carries the invitation token in the path, and
+ * whoever holds it can set the invited person's password.
+ */
+const SECRET_SEGMENT_AFTER = new Set(['invite']);
+
+/** An invitation path anywhere inside a (decoded) query value. */
+const INVITE_IN_VALUE = /(\/invite\/+)[^/?#&\s]+/gi;
+
+function decodeSegment(segment: string): string {
+	try {
+		return decodeURIComponent(segment);
+	} catch {
+		return segment;
+	}
+}
+
+/**
+ * The path with secret-bearing segments censored and everything else kept.
+ * Segments are compared decoded and case-insensitively, because SvelteKit
+ * decodes the path before matching routes (`/%69nvite/<token>` still reaches
+ * the invitation page). Only the first non-empty segment is a route folder
+ * here, so `/campaigns/invite` stays as it is.
+ */
+export function safePath(pathname: string): string {
+	const parts = pathname.split('/');
+	const first = parts.findIndex((p) => p !== '');
+	if (first < 0 || !SECRET_SEGMENT_AFTER.has(decodeSegment(parts[first]).toLowerCase())) return pathname;
+	// The next non-empty segment, so `/invite//<token>` is censored too.
+	const secret = parts.findIndex((p, i) => i > first && p !== '');
+	if (secret >= 0) parts[secret] = CENSOR;
+	return parts.join('/');
+}
+
+/**
+ * Path plus query, with secret path segments and the values of sensitive
+ * parameters censored. A query value that holds an invitation path
+ * (`?next=/invite/…`, or a whole link) has that token censored as well.
+ */
 export function safeUrl(url: URL): string {
-	if (!url.search) return url.pathname;
+	const path = safePath(url.pathname);
+	if (!url.search) return path;
 	const params = new URLSearchParams();
-	// An empty value (SvelteKit's `?/password` action names) has nothing to hide.
-	for (const [k, v] of url.searchParams) params.append(k, v && SENSITIVE_QUERY.test(k) ? CENSOR : v.slice(0, 200));
-	return `${url.pathname}?${params.toString()}`;
+	for (const [k, v] of url.searchParams) {
+		// An empty value (SvelteKit's `?/password` action names) has nothing to hide.
+		if (v && SENSITIVE_QUERY.test(k)) params.append(k, CENSOR);
+		else params.append(k, v.replace(INVITE_IN_VALUE, `$1${CENSOR}`).slice(0, 200));
+	}
+	return `${path}?${params.toString()}`;
 }
 
 /**
