@@ -11,6 +11,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn, type ChildProcess } from 'node:child_process';
 import { once } from 'node:events';
+import { randomBytes } from 'node:crypto';
 import { closeSync, existsSync, mkdirSync, openSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { ensureEnv, projectRoot } from '../../scripts/lib/env.mjs';
@@ -26,6 +27,8 @@ let server: ChildProcess;
 /** Everything the server sent back, headers and bodies, to search for secrets too. */
 const received: string[] = [];
 const createdTokens: string[] = [];
+/** Secrets that travel in the path: an invitation link is /invite/<token>. */
+const pathSecrets: string[] = [];
 const address = `192.0.2.${1 + Math.floor(Math.random() * 250)}`;
 
 async function call(path: string, init: RequestInit & { headers?: Record<string, string> } = {}) {
@@ -131,6 +134,16 @@ describe('secrets stay out of logs and responses', () => {
 		await call('/no-such-page', { headers: { cookie, accept: 'text/html', 'x-api-key': fileEnv.AUTH_SECRET } });
 		await call('/api/v1/people/not-a-uuid', { headers: { authorization: `Bearer ${token}` } });
 		await call('/auth/callback/nodemailer?token=0123456789abcdef&email=someone%40example.test');
+		// An invitation link (same shape as newSecret()): the page, its data and its form post.
+		const invitation = randomBytes(32).toString('base64url');
+		pathSecrets.push(invitation);
+		await call(`/invite/${invitation}`, { headers: { accept: 'text/html' } });
+		await call(`/invite/${invitation}/__data.json`);
+		await call(`/invite/${invitation}`, {
+			method: 'POST',
+			headers: { 'content-type': 'application/x-www-form-urlencoded', origin, accept: 'text/html' },
+			body: new URLSearchParams({ password: 'too short' })
+		});
 		// A cross-site POST carrying a password.
 		const forged = await call('/signin?/password', {
 			method: 'POST',
@@ -156,13 +169,16 @@ describe('secrets stay out of logs and responses', () => {
 			['AUTH_SECRET', fileEnv.AUTH_SECRET],
 			['SPANLINE_DB_PASSWORD', fileEnv.SPANLINE_DB_PASSWORD],
 			...DEMO_ACCOUNTS.map((a) => [`demo password of ${a.role}`, a.password] as [string, string]),
-			...createdTokens.map((t, i) => [`API token ${i + 1}`, t] as [string, string])
+			...createdTokens.map((t, i) => [`API token ${i + 1}`, t] as [string, string]),
+			...pathSecrets.map((t) => ['invitation token (path)', t] as [string, string])
 		];
 		expect(secrets.every(([, v]) => typeof v === 'string' && v.length >= 8)).toBe(true);
 		const found = secrets.filter(([, v]) => log.includes(v) || log.includes(encodeURIComponent(v)));
 		expect(found.map(([k]) => k), `secrets in ${logPath}`).toEqual([]);
 		// The sensitive query values were censored, not dropped silently: the request is still visible.
 		expect(requests.some((r) => typeof r.url === 'string' && /^\/signin\?password=(%5B|\[)Redacted/.test(r.url))).toBe(true);
+		// The invitation requests are logged with the route and a censored token.
+		expect(requests.filter((r) => typeof r.url === 'string' && r.url.startsWith('/invite/[Redacted]')).length).toBeGreaterThanOrEqual(3);
 	});
 
 	it('the shared server log of this `npm test` run (test-results/server.log) holds none of the secrets either', () => {
