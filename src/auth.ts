@@ -20,6 +20,7 @@ import * as signInRules from '$lib/server/auth/sign-in';
 import { smtpSettings } from '$lib/server/mail/transport';
 import * as mail from '$lib/server/mail';
 import { clientAddress } from '$lib/server/auth/request';
+import { log } from '$lib/server/log';
 
 /** Sign-in links work for this long (seconds). */
 export const LINK_MAX_AGE_S = 15 * 60;
@@ -46,9 +47,18 @@ function adapterFor(sequelize: ReturnType<typeof getSequelize>) {
 }
 
 function buildConfig(event: RequestEvent): SvelteKitAuthConfig {
+	// Auth.js builds its own URLs (the link in a sign-in e-mail, redirects, the
+	// session call) from AUTH_URL, else from the Host / X-Forwarded-Host /
+	// X-Forwarded-Proto request headers — which anyone can set, so a forged Host
+	// would put a genuine sign-in token into a link to the sender's server. Pin
+	// them to the app's one public origin (adapter-node's ORIGIN) instead.
+	if (env.ORIGIN && env.AUTH_URL !== env.ORIGIN) env.AUTH_URL = env.ORIGIN;
+	const origin = new URL(env.ORIGIN || event.url.origin);
 	const ctx = () => ({ ip: clientAddress(event), requestId: event.locals.requestId });
 	return {
 		trustHost: true,
+		// Secure (and __Secure- prefixed) cookies exactly when the public origin is https, whatever a proxy header says.
+		useSecureCookies: origin.protocol === 'https:',
 		secret: env.AUTH_SECRET,
 		adapter: adapterFor(getSequelize()),
 		session: { strategy: 'jwt', maxAge: SESSION_MAX_AGE_S },
@@ -57,10 +67,13 @@ function buildConfig(event: RequestEvent): SvelteKitAuthConfig {
 		logger: {
 			error(error: Error) {
 				if (error instanceof CredentialsSignin || error.name === 'AccessDenied' || error.name === 'Verification') return;
-				console.error(`[${event.locals.requestId}] auth: ${error.name}: ${error.message}`);
+				log().error({ authError: error.name, detail: error.message }, 'auth error');
 			},
 			warn(code: string) {
-				console.warn(`auth warning: ${code}`);
+				// AUTH_URL is set to the bare origin on purpose (above); Auth.js's note that the
+				// /auth base path is then implied is expected on every request, not a problem.
+				if (code === 'env-url-basepath-redundant') return;
+				log().warn({ code }, 'auth warning');
 			},
 			debug() {}
 		},

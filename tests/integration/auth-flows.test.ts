@@ -7,7 +7,7 @@
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import pg from 'pg';
 import { baseUrl } from '../support/env';
-import { Client, freshPerson, linkIn, signedInAs, testAddress, uniqueEmail, waitForMail } from '../support/session';
+import { Client, freshPerson, linkIn, mailFakeUrl, signedInAs, testAddress, uniqueEmail, waitForMail, type FakeMail } from '../support/session';
 
 let db: pg.Client;
 beforeAll(async () => {
@@ -129,6 +129,31 @@ describe('sign-in link by e-mail', () => {
 		expect(c.signedIn).toBe(false);
 		const page = await c.get('/signin?refused=link_expired');
 		expect(await page.text()).toContain('This sign-in link has expired');
+	});
+
+	it('puts only the app’s own origin into a sign-in link, whatever Host or X-Forwarded-* the request claims', async () => {
+		const person = await freshPerson('program_manager');
+		const forged = [{ host: 'evil.example' }, { 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'https' }];
+		for (const headers of forged) {
+			const c = new Client();
+			const res = await c.request('POST', '/signin?/link', {
+				body: new URLSearchParams({ email: person.email, next: '/' }),
+				headers: { 'content-type': 'application/x-www-form-urlencoded', origin: baseUrl(), accept: 'text/html', ...headers }
+			});
+			expect(res.status, JSON.stringify(headers)).toBe(302);
+			expect(res.headers.get('location') ?? '').not.toContain('evil.example');
+		}
+		// The mails as delivered to the SMTP fake (the outbox drops a link's body once it is sent).
+		let links: FakeMail[] = [];
+		for (const until = Date.now() + 10_000; links.length < forged.length && Date.now() < until; await new Promise((r) => setTimeout(r, 150))) {
+			const list = (await (await fetch(`${mailFakeUrl()}/messages`)).json()) as FakeMail[];
+			links = list.filter((m) => m.to.includes(person.email) && /sign-in link/.test(m.subject));
+		}
+		expect(links).toHaveLength(forged.length);
+		for (const m of links) {
+			expect(m.text + m.html).not.toContain('evil.example');
+			expect(m.text).toContain(`${new URL(baseUrl()).origin}/auth/callback/nodemailer`);
+		}
 	});
 
 	it('sends no link to an address without an account', async () => {

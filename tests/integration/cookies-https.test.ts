@@ -71,7 +71,7 @@ function parseSetCookies(res: Response): SetCookie[] {
 }
 
 /** Sign in through the real form action, as a browser on `origin` would. */
-async function signIn(connectTo: string, origin: string) {
+async function signIn(connectTo: string, origin: string, extra: Record<string, string> = {}) {
 	return fetch(`${connectTo}/signin?/password`, {
 		method: 'POST',
 		redirect: 'manual',
@@ -79,7 +79,8 @@ async function signIn(connectTo: string, origin: string) {
 			'content-type': 'application/x-www-form-urlencoded',
 			origin,
 			accept: 'text/html',
-			'x-forwarded-for': testAddress()
+			'x-forwarded-for': testAddress(),
+			...extra
 		},
 		body: new URLSearchParams({ email: engineer.email, password: engineer.password, next: '/' })
 	});
@@ -167,6 +168,17 @@ describe('session cookie under an https ORIGIN (own server)', () => {
 				expect(c.attrs.get('path'), c.raw).toBe('/');
 				expect(c.attrs.has('domain'), c.raw).toBe(false);
 			}
+		}
+	});
+
+	it('stays Secure when a request claims X-Forwarded-Proto: http or another Host', async () => {
+		for (const extra of [{ 'x-forwarded-proto': 'http' }, { 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'http' }]) {
+			const res = await signIn(local, httpsOrigin, extra);
+			expect(res.status, JSON.stringify(extra)).toBe(302);
+			const session = parseSetCookies(res).find((c) => c.name.endsWith('authjs.session-token'));
+			expect(session?.name, JSON.stringify(extra)).toBe('__Secure-authjs.session-token');
+			expect(session!.attrs.has('secure')).toBe(true);
+			expect(res.headers.get('location') ?? '').not.toContain('evil.example');
 		}
 	});
 
