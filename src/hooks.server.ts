@@ -9,7 +9,8 @@ import * as signInRules from '$lib/server/auth/sign-in';
 import * as links from '$lib/server/auth/links';
 import * as mail from '$lib/server/mail';
 import * as notifications from '$lib/server/notifications';
-import { logRequests } from '$lib/server/log';
+import { countQuery, log, logRequests, safeUrl } from '$lib/server/log';
+import { closeSequelize, observeQueries } from '$lib/server/db';
 import { securityHeaders } from '$lib/server/security-headers';
 import { isDatabaseUnavailable } from '$lib/server/db/errors';
 
@@ -29,13 +30,21 @@ const MAIL_RETRY_INTERVAL_MS = 15_000;
 
 export const init: ServerInit = async () => {
 	if (building) return;
+	observeQueries(countQuery);
 	// A small retry loop for mail that could not be delivered at once.
 	const timer = setInterval(() => {
-		mail.deliverDue().catch((err) => console.error('mail retry:', err instanceof Error ? err.message : err));
+		mail.deliverDue().catch((err) => log().error({ err }, 'mail retry failed'));
 	}, MAIL_RETRY_INTERVAL_MS);
 	timer.unref();
 	// Campaign digests on a schedule (off unless SPANLINE_DIGEST_INTERVAL_HOURS > 0).
 	notifications.startDigestScheduler();
+	// adapter-node's graceful shutdown: once in-flight requests are answered, close
+	// the pool at once (its idle connections would otherwise hold the process ~10 s).
+	process.once('sveltekit:shutdown', () => {
+		clearInterval(timer);
+		notifications.stopDigestScheduler();
+		closeSequelize().catch((err) => log().warn({ err }, 'closing the database pool at shutdown'));
+	});
 };
 
 const requestId: Handle = async ({ event, resolve }) => {
@@ -141,6 +150,7 @@ export const handleError: HandleServerError = ({ error, event, status, message }
 		event.locals.databaseUnavailable = true;
 		return { message: DB_DOWN_MESSAGE, code: 'database_unavailable', requestId: event.locals.requestId };
 	}
-	if (status !== 404) console.error(`[${event.locals.requestId}] ${status} ${event.url.pathname}:`, error);
+	// log() is this request's logger (its reqId); safeUrl hides path and query secrets (invitation tokens).
+	if (status !== 404) log().error({ err: error, status, url: safeUrl(event.url) }, 'unhandled error');
 	return { message: status === 404 ? 'Page not found.' : message, requestId: event.locals.requestId };
 };

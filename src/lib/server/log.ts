@@ -103,11 +103,27 @@ export function createLogger(options: { destination?: DestinationStream; env?: N
 }
 
 const root = createLogger();
-const current = new AsyncLocalStorage<Logger>();
+
+/** What is kept per request while it is handled: its logger and its database statements. */
+interface RequestScope {
+	logger: Logger;
+	queries: number;
+	dbMs: number;
+}
+const current = new AsyncLocalStorage<RequestScope>();
 
 /** The logger of the request being handled (with its reqId), or the process logger outside a request. */
 export function log(): Logger {
-	return current.getStore() ?? root;
+	return current.getStore()?.logger ?? root;
+}
+
+/** Count one finished database statement against the request being handled (see db/config observeQueries). */
+export function countQuery(ms: number): void {
+	const scope = current.getStore();
+	if (scope) {
+		scope.queries++;
+		scope.dbMs += ms;
+	}
 }
 
 /**
@@ -173,7 +189,8 @@ export function requestLogging(logger: Logger = root): Handle {
 		const reqId = event.locals.requestId || event.request.headers.get('x-request-id')?.slice(0, 64) || randomUUID();
 		const child = logger.child({ reqId });
 		const started = performance.now();
-		return current.run(child, async () => {
+		const scope: RequestScope = { logger: child, queries: 0, dbMs: 0 };
+		return current.run(scope, async () => {
 			try {
 				const response = await resolve(event);
 				const status = response.status;
@@ -182,7 +199,9 @@ export function requestLogging(logger: Logger = root): Handle {
 					url: safeUrl(event.url),
 					status,
 					ms: Math.round((performance.now() - started) * 10) / 10,
-					user: event.locals.user?.id ?? null
+					user: event.locals.user?.id ?? null,
+					// Statements run for this request and their summed time: the first thing to read when a page is slow.
+					db: { queries: scope.queries, ms: Math.round(scope.dbMs) }
 				};
 				if (status >= 500) child.warn(line, 'request failed');
 				else child.info(line, 'request');

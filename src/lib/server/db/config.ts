@@ -14,13 +14,23 @@ export function databaseUrlFromEnv(env: NodeJS.ProcessEnv = process.env): string
 	return url;
 }
 
+type QueryObserver = (ms: number) => void;
+let observer: QueryObserver | null = null;
+
+/** Report every finished statement's duration (the request log counts them per request). */
+export function observeQueries(fn: QueryObserver | null): void {
+	observer = fn;
+}
+
 /** Sequelize options shared by the app, the scripts and the tests. */
 export function sequelizeOptions(): Options {
 	return {
 		dialect: 'postgres',
 		// Passed explicitly so the bundler includes pg and Sequelize does not require() it dynamically.
 		dialectModule: pg,
-		logging: false,
+		// No SQL text is logged (it can carry user values); only each statement's duration is observed.
+		logging: (_sql: string, ms?: number) => observer?.(typeof ms === 'number' ? ms : 0),
+		benchmark: true,
 		define: { underscored: true },
 		// A down database must be reported within about 2 s, not hang a request.
 		dialectOptions: { connectionTimeoutMillis: 2000, statement_timeout: 30_000 },

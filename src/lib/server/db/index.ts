@@ -2,6 +2,7 @@
 // DATABASE_URL; relative imports only, so scripts (tsx) can import it too.
 import { Sequelize } from 'sequelize';
 import { databaseUrlFromEnv, sequelizeOptions } from './config';
+export { observeQueries } from './config';
 import { initModels, type Models } from './models';
 import './pg-types';
 

@@ -9,6 +9,7 @@
 import { Op, type Transaction } from 'sequelize';
 import { getModels } from '$lib/server/db';
 import { mailFrom, transport } from './transport';
+import { log } from '$lib/server/log';
 
 export * as messages from './messages';
 export { smtpSettings, mailFrom as mailFromAddress } from './transport';
@@ -76,7 +77,7 @@ async function writeOutbox(mail: OutgoingMail, transaction?: Transaction): Promi
 
 function deliverSafely(id: number): Promise<SendResult> {
 	return deliver(id).catch((err) => {
-		console.error(`mail ${id}: could not record the delivery attempt: ${err instanceof Error ? err.message : err}`);
+		log().error({ mailId: id, err }, 'mail: could not record the delivery attempt');
 		return { id, status: 'queued' as const, error: String(err) };
 	});
 }
@@ -130,7 +131,7 @@ export async function deliver(id: number): Promise<SendResult> {
 			nextAttemptAt: new Date(Date.now() + pause * 1000)
 		});
 		// The address is logged, never the body (it may carry a one-time link).
-		console.error(`mail ${id} (${row.kind}) to ${row.to}: attempt ${attempts} failed: ${message}`);
+		log().warn({ mailId: id, kind: row.kind, to: row.to, attempt: attempts, error: message }, 'mail delivery attempt failed');
 		return { id, status: failed ? 'failed' : 'queued', error: message };
 	}
 }

@@ -21,6 +21,7 @@ import * as audit from '$lib/server/audit';
 import * as summary from '$lib/server/summary';
 import { DELTA_QUANTITIES } from '$lib/server/correlation/quantities';
 import type { Role } from '$lib/server/auth/roles';
+import { log } from '$lib/server/log';
 
 export const NOTIFICATION_KINDS = ['run_reduced', 'tolerance_exceeded', 'campaign_digest'] as const;
 export type NotificationKind = (typeof NOTIFICATION_KINDS)[number];
@@ -98,7 +99,7 @@ export interface NotifyResult {
 }
 
 function logFailure(what: string, err: unknown) {
-	console.error(`notifications: ${what}: ${err instanceof Error ? err.message : String(err)}`);
+	log().error({ err }, `notifications: ${what} failed`);
 }
 
 // ------------------------------------------------------------ run reduced
@@ -256,6 +257,23 @@ export function digestSchedule(): { intervalHours: number; checkSeconds: number 
 
 /** Send the digest of every active campaign whose last scheduled digest is older than the interval. */
 export async function sendDueDigests(intervalHours: number): Promise<DigestResult[]> {
+	// Several app processes (workers, machines) run this schedule: a transaction-scoped
+	// advisory lock lets one of them send while the others skip this round.
+	return getSequelize().transaction(async (transaction) => {
+		const [{ got }] = await getSequelize().query<{ got: boolean }>('SELECT pg_try_advisory_xact_lock(:key) AS got', {
+			replacements: { key: DIGEST_LOCK_KEY },
+			type: QueryTypes.SELECT,
+			transaction
+		});
+		if (!got) return [];
+		return sendDueDigestsLocked(intervalHours);
+	});
+}
+
+/** Arbitrary, fixed key of the digest schedule's advisory lock (any 64-bit integer unique to this use). */
+const DIGEST_LOCK_KEY = 7_261_420_001;
+
+async function sendDueDigestsLocked(intervalHours: number): Promise<DigestResult[]> {
 	const due = await getSequelize().query<{ id: number }>(
 		`SELECT c.id FROM campaigns c
 		 WHERE c.status = 'active'
@@ -292,4 +310,11 @@ export function startDigestScheduler(): boolean {
 	}, schedule.checkSeconds * 1000);
 	g[TIMER].unref?.();
 	return true;
+}
+
+/** Stop the digest schedule of this process (graceful shutdown). */
+export function stopDigestScheduler(): void {
+	const g = globalThis as Holder;
+	if (g[TIMER]) clearInterval(g[TIMER]);
+	delete g[TIMER];
 }

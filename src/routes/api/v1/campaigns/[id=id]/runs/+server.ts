@@ -5,6 +5,7 @@ import { importQuerySchema, listRunsQuerySchema } from '$lib/server/runs/schemas
 import { actorOf, errorBody, failure, invalid, queryObject } from '$lib/server/runs/http';
 import { discardBody } from '$lib/server/runs/import';
 import type { RequestHandler } from './$types';
+import { log } from '$lib/server/log';
 
 /** A caller refused before auth or with a bad query gets its answer after at most this much of the body is read and dropped. */
 const REFUSED_DRAIN_BYTES = 1024 * 1024;
@@ -59,7 +60,7 @@ export const POST: RequestHandler = async (event) => {
 					.catch((e) => {
 						if (e instanceof runs.RunError) line({ status: e.status, ...errorBody(e) });
 						else {
-							console.error(`[${locals.requestId}] import failed:`, e);
+							log().error({ err: e }, 'import failed');
 							line({ status: 500, error: { code: 'internal', message: 'The import failed on the server.', details: [] } });
 						}
 					})
