@@ -46,6 +46,11 @@ function adapterFor(sequelize: ReturnType<typeof getSequelize>) {
 	return adapter;
 }
 
+/** Whether session cookies are Secure and __Secure- prefixed: exactly when the public origin is https. */
+export function usesSecureCookies(event: Pick<RequestEvent, 'url'>): boolean {
+	return new URL(env.ORIGIN || event.url.origin).protocol === 'https:';
+}
+
 function buildConfig(event: RequestEvent): SvelteKitAuthConfig {
 	// Auth.js builds its own URLs (the link in a sign-in e-mail, redirects, the
 	// session call) from AUTH_URL, else from the Host / X-Forwarded-Host /
@@ -53,12 +58,11 @@ function buildConfig(event: RequestEvent): SvelteKitAuthConfig {
 	// would put a genuine sign-in token into a link to the sender's server. Pin
 	// them to the app's one public origin (adapter-node's ORIGIN) instead.
 	if (env.ORIGIN && env.AUTH_URL !== env.ORIGIN) env.AUTH_URL = env.ORIGIN;
-	const origin = new URL(env.ORIGIN || event.url.origin);
 	const ctx = () => ({ ip: clientAddress(event), requestId: event.locals.requestId });
 	return {
 		trustHost: true,
 		// Secure (and __Secure- prefixed) cookies exactly when the public origin is https, whatever a proxy header says.
-		useSecureCookies: origin.protocol === 'https:',
+		useSecureCookies: usesSecureCookies(event),
 		secret: env.AUTH_SECRET,
 		adapter: adapterFor(getSequelize()),
 		session: { strategy: 'jwt', maxAge: SESSION_MAX_AGE_S },

@@ -3,7 +3,9 @@ import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { randomUUID } from 'node:crypto';
 import { apiError } from '$lib/server/http';
-import { handle as authHandle } from './auth';
+import { env } from '$env/dynamic/private';
+import { handle as authHandle, usesSecureCookies } from './auth';
+import { readSession } from '$lib/server/auth/session';
 import * as tokens from '$lib/server/auth/tokens';
 import * as signInRules from '$lib/server/auth/sign-in';
 import * as links from '$lib/server/auth/links';
@@ -95,6 +97,18 @@ const linkCheck: Handle = async ({ event, resolve }) => {
 
 const SESSION_COOKIES = ['authjs.session-token', '__Secure-authjs.session-token'];
 
+/**
+ * The session's user id: decoded here (cached per cookie value, see
+ * auth/session.ts); Auth.js itself is asked only to roll an old cookie or to
+ * judge one that does not decode.
+ */
+async function sessionUserId(event: Parameters<Handle>[0]['event']): Promise<string | null> {
+	const read = await readSession(event.cookies, env.AUTH_SECRET ?? '', usesSecureCookies(event));
+	if (read.kind === 'none') return null;
+	if (read.kind === 'valid' && !read.roll) return read.claims.userId;
+	return (await event.locals.auth())?.user?.id ?? null;
+}
+
 /** Who is asking: an API token, else the Auth.js session, re-checked against the database. */
 const identify: Handle = async ({ event, resolve }) => {
 	const header = event.request.headers.get('authorization');
@@ -108,8 +122,7 @@ const identify: Handle = async ({ event, resolve }) => {
 		event.locals.user = user;
 		return resolve(event);
 	}
-	const session = await event.locals.auth();
-	const id = session?.user?.id;
+	const id = await sessionUserId(event);
 	if (id) {
 		const user = await signInRules.activeUser(id);
 		if (user) {

@@ -165,10 +165,24 @@ export function studentTCdf(t: number, dof: number): number {
  * found by bracketing and bisection to full double precision.
  */
 export function studentTQuantile(p: number, dof: number): number {
+	// The same few (p, ν) pairs recur in every fit and band: remember them
+	// (a bisection costs tens of incomplete-beta evaluations).
+	const key = `${p}|${dof}`;
+	const known = quantiles.get(key);
+	if (known !== undefined) return known;
+	const t = studentTQuantileUncached(p, dof);
+	if (quantiles.size >= 1024) quantiles.clear();
+	quantiles.set(key, t);
+	return t;
+}
+
+const quantiles = new Map<string, number>();
+
+function studentTQuantileUncached(p: number, dof: number): number {
 	if (!(p > 0 && p < 1)) throw new Error(`Student t: probability must be within (0, 1) (got ${p})`);
 	if (!(dof > 0)) throw new Error(`Student t: degrees of freedom must be > 0 (got ${dof})`);
 	if (p === 0.5) return 0;
-	if (p < 0.5) return -studentTQuantile(1 - p, dof);
+	if (p < 0.5) return -studentTQuantileUncached(1 - p, dof);
 	// Work with the upper tail 1 − p to keep precision for p near 1.
 	const target = 1 - p;
 	const upper = (t: number) => 0.5 * regularizedIncompleteBeta(dof / (dof + t * t), dof / 2, 0.5);
@@ -503,4 +517,22 @@ export function fitOffsetPolar(CL: ArrayLike<number>, CD: ArrayLike<number>, asp
 	};
 	if (aspectRatio !== undefined) out.e = oswald(k, aspectRatio, tq);
 	return out;
+}
+
+/**
+ * Confidence band of the mean response of a straight line y = a + b·x fitted
+ * to `xs` with residual standard deviation `s` and `dof` degrees of freedom:
+ * half-width t(½ + c/2, ν)·s·√(1/n + (x − x̄)²/Sxx) (Montgomery & Runger,
+ * ch. 11, confidence interval on the mean response). Returns the half-width
+ * as a function of x; t, x̄ and Sxx are computed once.
+ */
+export function meanResponseBand(xs: readonly number[], s: number, dof: number, confidence = CONFIDENCE): (x: number) => number {
+	const n = xs.length;
+	let xbar = 0;
+	for (const v of xs) xbar += v;
+	xbar /= n;
+	let sxx = 0;
+	for (const v of xs) sxx += (v - xbar) ** 2;
+	const ts = studentTQuantile(0.5 + confidence / 2, dof) * s;
+	return (x) => ts * Math.sqrt(1 / n + (x - xbar) ** 2 / sxx);
 }

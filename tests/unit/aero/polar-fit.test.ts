@@ -8,7 +8,8 @@ import {
 	logGamma,
 	fitLiftCurve,
 	fitParabolicPolar,
-	fitOffsetPolar
+	fitOffsetPolar,
+	meanResponseBand
 } from '$lib/aero/polar-fit';
 
 describe('Student t quantiles (Montgomery & Runger, Applied Statistics and Probability for Engineers, appendix t table, table number from memory; any t table), ±5e-4 (table digits)', () => {
@@ -167,4 +168,32 @@ describe('drag polars', () => {
 		[() => fitParabolicPolar([0.1, 0.2, 0.3], [0.02, 0.03, 0.04], -1), 'parabolic polar fit: aspectRatio must be > 0 (got -1)'],
 		[() => fitOffsetPolar([0, 0.2, 0.4, 0.6], [0.05, 0.04, 0.03, 0.02]), 'the quadratic term is not positive']
 	] as Array<[() => unknown, string]>)('bad input %#', (fn, msg) => expect(fn).toThrow(msg));
+});
+
+describe('confidence band on the mean response of a straight line', () => {
+	// Oxygen-purity data (x: hydrocarbon level %, y: purity %), Montgomery & Runger,
+	// Applied Statistics and Probability for Engineers, ch. 11 (table 11-1; the worked
+	// 95 % interval on the mean response at x0 = 1.00 %, 89.23 ± 0.75, is example 11-6).
+	// Data, result and numbering are quoted from memory; simple-statistics checks the fit itself.
+	const x = [0.99, 1.02, 1.15, 1.29, 1.46, 1.36, 0.87, 1.23, 1.55, 1.4, 1.19, 1.15, 0.98, 1.01, 1.11, 1.2, 1.26, 1.32, 1.43, 0.95];
+	const y = [90.01, 89.05, 91.43, 93.74, 96.73, 94.45, 87.59, 91.77, 99.42, 93.65, 93.54, 92.52, 90.56, 89.54, 89.85, 90.39, 93.25, 93.41, 94.98, 87.33];
+	const { m, b } = linearRegression(x.map((v, i) => [v, y[i]]));
+	const sse = x.reduce((acc, v, i) => acc + (y[i] - (b + m * v)) ** 2, 0);
+	const s = Math.sqrt(sse / (x.length - 2));
+
+	it('reproduces the fit (ŷ = 74.283 + 14.947 x) and the half-width 0.75 at x0 = 1.00', () => {
+		expect(b).toBeCloseTo(74.283, 2);
+		expect(m).toBeCloseTo(14.947, 2);
+		expect(b + m * 1.0).toBeCloseTo(89.23, 1);
+		// ±0.01: the book rounds σ̂² and Sxx before the square root (full precision gives 0.745).
+		expect(Math.abs(meanResponseBand(x, s, x.length - 2)(1.0) - 0.75)).toBeLessThan(0.01);
+	});
+
+	it('is narrowest at the mean of x and grows symmetrically away from it', () => {
+		const band = meanResponseBand(x, s, x.length - 2);
+		const xbar = x.reduce((a, v) => a + v, 0) / x.length;
+		expect(band(xbar)).toBeCloseTo(studentTQuantile(0.975, 18) * s / Math.sqrt(x.length), 12);
+		expect(band(xbar + 0.3)).toBeCloseTo(band(xbar - 0.3), 12);
+		expect(band(xbar + 0.3)).toBeGreaterThan(band(xbar + 0.1));
+	});
 });

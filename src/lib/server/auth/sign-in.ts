@@ -179,11 +179,16 @@ export async function completeLinkSignIn(rawEmail: string, ctx: AttemptContext):
 
 /** The signed-in person as the hook sees them on each request: null when gone or deactivated. */
 export async function activeUser(id: string): Promise<SessionUser | null> {
-	const { User } = getModels();
-	const user = await User.findByPk(id, { attributes: ['id', 'name', 'email', 'role', 'active'] });
-	if (!user || !user.active) return null;
-	return toSessionUser(user);
+	// Runs on every signed-in page request: one plain statement, no model instance.
+	if (!UUID.test(id)) return null;
+	const [user] = await getSequelize().query<{ id: string; name: string | null; email: string; role: string }>(
+		'SELECT id, name, email, role FROM users WHERE id = :id AND active',
+		{ replacements: { id }, type: QueryTypes.SELECT }
+	);
+	return user ? toSessionUser(user) : null;
 }
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** Wording of each refusal, for the sign-in page and the API. */
 export function refusalMessage(d: Exclude<SignInDecision, { ok: true }>): string {

@@ -9,7 +9,8 @@ export interface SessionUser {
 	role: Role;
 }
 
-export function toSessionUser(u: Pick<User, 'id' | 'name' | 'email' | 'role'>): SessionUser {
+/** Accepts a model instance or a plain row (its role is checked here either way). */
+export function toSessionUser(u: Pick<User, 'id' | 'name' | 'email'> & { role: string }): SessionUser {
 	if (!isRole(u.role)) throw new Error(`user ${u.id} has an unknown role '${u.role}'`);
 	return { id: u.id, name: u.name, email: u.email, role: u.role };
 }

@@ -17,7 +17,7 @@
  * airworthiness decisions follow the organisation's approved procedures,
  * local regulations and licensed practice.
  */
-import { fitLiftCurve, fitOffsetPolar, fitParabolicPolar, studentTQuantile, CONFIDENCE, type Estimate, type Outlier } from '../../aero/polar-fit';
+import { fitLiftCurve, fitOffsetPolar, fitParabolicPolar, meanResponseBand, CONFIDENCE, type Estimate, type Outlier } from '../../aero/polar-fit';
 import { balanceUncertainty, combine, COVERAGE_FACTOR, type InputUncertainty } from '../../aero/uncertainty';
 
 /** Samples of each chart curve. */
@@ -107,21 +107,6 @@ function message(e: unknown): string {
 	return e instanceof Error ? e.message : String(e);
 }
 
-/**
- * Band of the mean response of a straight line y = a + b·x fitted to `xs`
- * with residual standard deviation `s` and `dof` degrees of freedom, at `x`.
- */
-export function meanResponseHalfWidth(xs: readonly number[], s: number, dof: number, x: number): number {
-	const n = xs.length;
-	let xbar = 0;
-	for (const v of xs) xbar += v;
-	xbar /= n;
-	let sxx = 0;
-	for (const v of xs) sxx += (v - xbar) ** 2;
-	const t = studentTQuantile(0.5 + CONFIDENCE / 2, dof);
-	return t * s * Math.sqrt(1 / n + (x - xbar) ** 2 / sxx);
-}
-
 /** Smallest and largest value by a loop: Math.min(...v) overflows the call stack for a few hundred thousand values. */
 export function extent(v: ArrayLike<number>): [number, number] {
 	let lo = Infinity, hi = -Infinity;
@@ -162,6 +147,7 @@ export function fitReduction(points: readonly FitPoint[], aspectRatio: number | 
 			const c = la.map((p) => p.CL as number);
 			const f = fitLiftCurve(a, c);
 			const xs = f.linearRange.indices.map((i) => a[i]);
+			const liftBand = meanResponseBand(xs, f.residualStd, f.dof);
 			const [xMin, xMax] = extent(xs);
 			const slope = f.liftSlopePerDeg.value;
 			const intercept = -slope * f.alphaZeroLiftDeg.value;
@@ -181,7 +167,7 @@ export function fitReduction(points: readonly FitPoint[], aspectRatio: number | 
 				outliers: mapOutliers(f.outliers, la.map((p) => p.idx)),
 				curve: linspace(xMin, xMax).map((x) => {
 					const y = intercept + slope * x;
-					const h = meanResponseHalfWidth(xs, f.residualStd, f.dof, x);
+					const h = liftBand(x);
 					return { alphaDeg: x, CL: y, lower: y - h, upper: y + h };
 				})
 			};
@@ -201,7 +187,7 @@ export function fitReduction(points: readonly FitPoint[], aspectRatio: number | 
 	else {
 		try {
 			const f = fitParabolicPolar(cls, cds, AR ?? undefined);
-			const x2 = cls.map((c) => c * c);
+			const polarBand = meanResponseBand(cls.map((c) => c * c), f.residualStd, f.dof);
 			const [clMin, clMax] = extent(cls);
 			polar = {
 				status: 'fitted',
@@ -216,7 +202,7 @@ export function fitReduction(points: readonly FitPoint[], aspectRatio: number | 
 				outliers: mapOutliers(f.outliers, idxs),
 				curve: linspace(clMin, clMax).map((cl) => {
 					const y = f.CD0.value + f.k.value * cl * cl;
-					const h = meanResponseHalfWidth(x2, f.residualStd, f.dof, cl * cl);
+					const h = polarBand(cl * cl);
 					return { CL: cl, CD: y, lower: y - h, upper: y + h };
 				})
 			};

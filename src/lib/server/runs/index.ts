@@ -90,39 +90,59 @@ function reductionDto(r: { id: number; version: number; settings: Record<string,
 	return { id: Number(r.id), version: r.version, settings: r.settings, fits: r.fits, corrections: r.corrections };
 }
 
+interface RunDetailRow {
+	id: string;
+	campaign_id: string;
+	run_number: string;
+	kind: RunKind;
+	state: RunState;
+	is_tare: boolean;
+	tare_run_id: string | null;
+	repeat_of_run_id: string | null;
+	conditions: Record<string, unknown> | null;
+	notes: string | null;
+	config_id: string | null;
+	config_name: string | null;
+	config_version: number | null;
+	files: { id: number; name: string; size: number; sha256: string; sheet: string | null; storage: string; rowCount: number | null }[];
+	reductions: { id: number; version: number; createdAt: string; createdBy: string | null; createdByName: string | null; isCurrent: boolean }[];
+	cur_id: string | null;
+	cur_version: number | null;
+	cur_settings: Record<string, unknown> | null;
+	cur_fits: Record<string, unknown> | null;
+	cur_corrections: Record<string, unknown> | null;
+}
+
+/** Run detail in one statement (run, configuration, source files, reduction versions with authors, current reduction). */
 export async function getRun(id: number, role: Role | null): Promise<RunDetail | null> {
-	const { Run, Configuration, Reduction } = getModels();
-	const run = await Run.findByPk(id);
-	if (!run) return null;
-	const config = run.configurationId ? await Configuration.findByPk(run.configurationId, { attributes: ['id', 'name', 'version'] }) : null;
-	const files = await getSequelize().query<{ id: string; name: string; size: string; sha256: string; sheet: string | null; storage: string; row_count: number | null }>(
-		'SELECT id, name, size, sha256, sheet, storage, row_count FROM source_files WHERE run_id = :id ORDER BY id',
+	const [row] = await getSequelize().query<RunDetailRow>(
+		`SELECT r.id, r.campaign_id, r.run_number, r.kind, r.state, r.is_tare, r.tare_run_id, r.repeat_of_run_id, r.conditions, r.notes,
+		        c.id AS config_id, c.name AS config_name, c.version AS config_version,
+		        (SELECT coalesce(json_agg(json_build_object('id', f.id, 'name', f.name, 'size', f.size, 'sha256', f.sha256, 'sheet', f.sheet,
+		                                                    'storage', f.storage, 'rowCount', f.row_count) ORDER BY f.id), '[]')
+		           FROM source_files f WHERE f.run_id = r.id) AS files,
+		        (SELECT coalesce(json_agg(json_build_object('id', d.id, 'version', d.version, 'createdAt', d.created_at, 'createdBy', d.created_by,
+		                                                    'createdByName', coalesce(u.name, u.email), 'isCurrent', d.is_current) ORDER BY d.version), '[]')
+		           FROM reductions d LEFT JOIN users u ON u.id = d.created_by WHERE d.run_id = r.id) AS reductions,
+		        cur.id AS cur_id, cur.version AS cur_version, cur.settings AS cur_settings, cur.fits AS cur_fits, cur.corrections AS cur_corrections
+		   FROM runs r
+		   LEFT JOIN configurations c ON c.id = r.configuration_id
+		   LEFT JOIN reductions cur ON cur.run_id = r.id AND cur.is_current
+		  WHERE r.id = :id`,
 		{ replacements: { id }, type: QueryTypes.SELECT }
 	);
-	const reds = await Reduction.findAll({ where: { runId: id }, order: [['version', 'ASC']] });
-	const current = reds.find((r) => r.isCurrent) ?? null;
-	const authorIds = [...new Set(reds.map((r) => r.createdBy).filter((u): u is string => Boolean(u)))];
-	const authors = new Map(
-		authorIds.length === 0
-			? []
-			: (
-					await getSequelize().query<{ id: string; name: string | null; email: string }>('SELECT id, name, email FROM users WHERE id IN (:ids)', {
-						replacements: { ids: authorIds },
-						type: QueryTypes.SELECT
-					})
-				).map((u) => [u.id, u.name ?? u.email])
-	);
-	const c = run.conditions ?? {};
+	if (!row) return null;
+	const c = (row.conditions ?? {}) as Record<string, unknown>;
 	return {
-		id: Number(run.id),
-		campaignId: Number(run.campaignId),
-		runNumber: run.runNumber,
-		kind: run.kind,
-		state: run.state,
-		isTare: run.isTare,
-		tareRunId: num(run.tareRunId),
-		repeatOfRunId: num(run.repeatOfRunId),
-		configuration: config ? { id: Number(config.id), name: config.name, version: config.version } : null,
+		id: Number(row.id),
+		campaignId: Number(row.campaign_id),
+		runNumber: row.run_number,
+		kind: row.kind,
+		state: row.state,
+		isTare: row.is_tare,
+		tareRunId: num(row.tare_run_id),
+		repeatOfRunId: num(row.repeat_of_run_id),
+		configuration: row.config_id ? { id: Number(row.config_id), name: row.config_name!, version: row.config_version! } : null,
 		conditions: {
 			qPa: num(c.qPa),
 			velocity: num(c.velocityMps),
@@ -132,11 +152,15 @@ export async function getRun(id: number, role: Role | null): Promise<RunDetail |
 			reynolds: num(c.reynolds),
 			mach: num(c.mach)
 		},
-		sourceFiles: files.map((f) => ({ id: Number(f.id), name: f.name, size: Number(f.size), sha256: f.sha256, sheet: f.sheet, storage: f.storage, rowCount: f.row_count })),
-		currentReduction: current ? reductionDto(current) : null,
-		reductions: reds.map((r) => ({ id: Number(r.id), version: r.version, createdAt: r.createdAt.toISOString(), createdBy: r.createdBy ?? null, createdByName: r.createdBy ? (authors.get(r.createdBy) ?? null) : null, isCurrent: r.isCurrent })),
-		notes: run.notes ?? null,
-		allowedTransitions: allowedTransitions(run.state, role)
+		sourceFiles: row.files.map((f) => ({ ...f, id: Number(f.id), size: Number(f.size) })),
+		currentReduction:
+			row.cur_id === null
+				? null
+				: reductionDto({ id: Number(row.cur_id), version: row.cur_version!, settings: row.cur_settings ?? {}, fits: row.cur_fits, corrections: row.cur_corrections }),
+		// json_build_object writes timestamptz in the session's offset notation; the API speaks ISO 8601 UTC.
+		reductions: row.reductions.map((r) => ({ ...r, id: Number(r.id), createdAt: new Date(r.createdAt).toISOString(), createdByName: r.createdBy ? r.createdByName : null })),
+		notes: row.notes ?? null,
+		allowedTransitions: allowedTransitions(row.state, role)
 	};
 }
 
@@ -193,23 +217,47 @@ export interface PointDto {
 }
 
 /** Points of the current reduction, or of `version`. Null when the run or version does not exist. */
+interface PointRow {
+	idx: number;
+	alpha_deg: number | null;
+	cl: number | null;
+	cd: number | null;
+	cm: number | null;
+	q_pa: number | null;
+	velocity: number | null;
+	reynolds: number | null;
+	mach: number | null;
+	uncertainty: PointDto['uncertainty'];
+	flags: PointDto['flags'];
+	excluded: boolean;
+	values: Record<string, unknown> | null;
+}
+
+/** A reduction's points, in two plain statements (no model instances: a run can have thousands of points). */
 export async function getPoints(runId: number, version?: number): Promise<{ reduction: ReductionDto; points: PointDto[] } | null> {
-	const { Reduction, Point } = getModels();
-	const red = await Reduction.findOne({ where: version ? { runId, version } : { runId, isCurrent: true } });
+	const sequelize = getSequelize();
+	const [red] = await sequelize.query<{ id: string; version: number; settings: Record<string, unknown>; fits: Record<string, unknown> | null; corrections: Record<string, unknown> | null }>(
+		`SELECT id, version, settings, fits, corrections FROM reductions WHERE run_id = :runId AND ${version ? 'version = :version' : 'is_current'}`,
+		{ replacements: { runId, version: version ?? null }, type: QueryTypes.SELECT }
+	);
 	if (!red) return null;
-	const pts = await Point.findAll({ where: { reductionId: red.id }, order: [['idx', 'ASC']] });
+	const pts = await sequelize.query<PointRow>(
+		`SELECT idx, alpha_deg, cl, cd, cm, q_pa, velocity, reynolds, mach, uncertainty, flags, excluded, "values"
+		   FROM points WHERE reduction_id = :id ORDER BY idx`,
+		{ replacements: { id: red.id }, type: QueryTypes.SELECT }
+	);
 	return {
-		reduction: reductionDto(red),
+		reduction: reductionDto({ ...red, id: Number(red.id) }),
 		points: pts.map((p) => {
 			const v = (p.values ?? {}) as Record<string, unknown> & { corrections?: { liftInterference: { dAlphaDeg: number; dCD: number }; streamlineCurvature: { dAlphaDeg: number }; blockage: { epsilon: number } } };
 			const c = v.corrections;
 			return {
 				idx: p.idx,
-				alphaDeg: p.alphaDeg ?? null,
+				alphaDeg: p.alpha_deg ?? null,
 				CL: p.cl ?? null,
 				CD: p.cd ?? null,
 				Cm: p.cm ?? null,
-				qPa: p.qPa ?? null,
+				qPa: p.q_pa ?? null,
 				velocity: p.velocity ?? null,
 				reynolds: p.reynolds ?? null,
 				mach: p.mach ?? null,
