@@ -9,7 +9,9 @@
  * requests) with the loaded/idle ratio.
  *
  * Options (environment): BENCH_USERS (50), BENCH_UPLOADERS (5), BENCH_SECONDS (60),
- * BENCH_WARMUP_SECONDS (10, same load, not counted), BENCH_PORT (3121). Targets from issue 7: 0 errors, p95 of page and API
+ * BENCH_WARMUP_SECONDS (10, same load, not counted), BENCH_PORT (3121), BENCH_WORKERS
+ * (server processes, default one per core as `npm start`), BENCH_NODE_ARGS
+ * (extra flags for the server's node, e.g. `--cpu-prof --cpu-prof-dir=.data/prof`). Targets from issue 7: 0 errors, p95 of page and API
  * reads < 200 ms, RSS growth < 20 %.
  *
  * The build is copied to .data/bench-build first, so an `npm test` that
@@ -18,7 +20,7 @@
  * client, keep-alive), so it includes the client's own overhead.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
-import { cpSync, existsSync, mkdirSync, openSync, closeSync, readFileSync, rmSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, openSync, closeSync, readFileSync, readdirSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { ensureEnv, projectRoot } from './lib/env.mjs';
 import { databaseUrl, ensurePostgres, recreateDatabase } from './lib/postgres.mjs';
@@ -34,9 +36,38 @@ const MB = 1024 * 1024;
 
 type Kind = 'page' | 'api' | 'upload';
 
+/** The server's processes: the cluster primary and its workers (scripts/serve.mjs). */
+function processTree(root: number): number[] {
+	const children = new Map<number, number[]>();
+	for (const d of readdirSync('/proc').filter((x) => /^\d+$/.test(x))) {
+		try {
+			const ppid = Number(readFileSync(`/proc/${d}/stat`, 'utf8').split(') ')[1].split(' ')[1]);
+			children.set(ppid, [...(children.get(ppid) ?? []), Number(d)]);
+		} catch {
+			/* ended meanwhile */
+		}
+	}
+	const out: number[] = [];
+	const walk = (p: number) => {
+		out.push(p);
+		for (const c of children.get(p) ?? []) walk(c);
+	};
+	walk(root);
+	return out;
+}
+
+/** Resident memory of the whole server (primary plus workers), bytes. */
 function rss(pid: number): number {
-	const s = readFileSync(`/proc/${pid}/status`, 'utf8');
-	return Number(/^VmRSS:\s+(\d+) kB/m.exec(s)?.[1] ?? NaN) * 1024;
+	let total = 0;
+	for (const p of processTree(pid)) {
+		try {
+			const s = readFileSync(`/proc/${p}/status`, 'utf8');
+			total += Number(/^VmRSS:\s+(\d+) kB/m.exec(s)?.[1] ?? 0) * 1024;
+		} catch {
+			/* ended meanwhile */
+		}
+	}
+	return total;
 }
 
 function pct(sorted: number[], p: number): number {
@@ -79,10 +110,37 @@ interface Sample {
 	ok: boolean;
 }
 
-/** CPU seconds (user + system) a process has used, from /proc/<pid>/stat (clock ticks of 1/100 s on Linux). */
-function cpuSeconds(pid: number): number {
+/** CPU seconds (user + system) one process has used, from /proc/<pid>/stat (clock ticks of 1/100 s on Linux). */
+function processCpuSeconds(pid: number): number {
 	const f = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
 	return (Number(f[11]) + Number(f[12])) / 100;
+}
+
+/** CPU seconds of the whole server (primary plus workers). */
+function cpuSeconds(pid: number): number {
+	let total = 0;
+	for (const p of processTree(pid)) {
+		try {
+			total += processCpuSeconds(p);
+		} catch {
+			/* ended meanwhile */
+		}
+	}
+	return total;
+}
+
+/** CPU seconds of every process named `postgres` (the server and its backends; ended backends are not counted). */
+function postgresCpuSeconds(): number {
+	let total = 0;
+	for (const pid of readdirSync('/proc').filter((d) => /^\d+$/.test(d))) {
+		try {
+			const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+			if (stat.includes('(postgres)')) total += processCpuSeconds(Number(pid));
+		} catch {
+			/* the process ended meanwhile */
+		}
+	}
+	return total;
 }
 
 async function main() {
@@ -106,7 +164,9 @@ async function main() {
 		HOST: '127.0.0.1',
 		ORIGIN,
 		BODY_SIZE_LIMIT: 'Infinity',
-		SPANLINE_ENV: 'bench'
+		SPANLINE_ENV: 'bench',
+		// As `npm start` serves: scripts/serve.mjs, one worker per core unless BENCH_WORKERS says otherwise.
+		SPANLINE_WORKERS: process.env.BENCH_WORKERS ?? ''
 	};
 	run('npx', ['tsx', 'scripts/migrate.ts', 'up'], env);
 	run('npx', ['tsx', 'scripts/seed.ts'], env);
@@ -114,7 +174,8 @@ async function main() {
 	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
 	const logPath = join(projectRoot, '.data', 'test-logs', 'bench-load-server.log');
 	const fd = openSync(logPath, 'w');
-	const server = spawn('node', [buildCopy], { cwd: projectRoot, env, stdio: ['ignore', fd, fd] });
+	const nodeArgs = (process.env.BENCH_NODE_ARGS ?? '').split(/\s+/).filter(Boolean);
+	const server = spawn('node', [...nodeArgs, 'scripts/serve.mjs', buildCopy], { cwd: projectRoot, env, stdio: ['ignore', fd, fd] });
 	closeSync(fd);
 	const stop = () => {
 		if (server.exitCode === null) server.kill('SIGTERM');
@@ -198,6 +259,20 @@ async function main() {
 		}
 		for (let r = 0; r < 5; r++) baseline.push(await once('upload', 0));
 
+		// Server CPU per request, path by path, one request at a time: where the
+		// capacity goes (the /proc figure has a 10 ms tick, hence the repeats).
+		const REPEAT = 25;
+		const cost: { path: string; cpuMs: number; wallMs: number }[] = [];
+		const costOf = async (kind: Kind, i: number, path: string) => {
+			const c0 = cpuSeconds(server.pid!);
+			const w0 = performance.now();
+			for (let r = 0; r < REPEAT; r++) await once(kind, i);
+			cost.push({ path, cpuMs: ((cpuSeconds(server.pid!) - c0) * 1000) / REPEAT, wallMs: (performance.now() - w0) / REPEAT });
+		};
+		for (let i = 0; i < pages.length; i++) await costOf('page', i, pages[i]);
+		for (let i = 0; i < apis.length; i++) await costOf('api', i, apis[i]);
+		await costOf('upload', 0, 'upload (POST)');
+
 		const readers = USERS - UPLOADERS;
 		const drive = async (seconds: number, into: Sample[]) => {
 			const until = performance.now() + seconds * 1000;
@@ -218,14 +293,22 @@ async function main() {
 		);
 		const samples: Sample[] = [];
 		const cpu0 = cpuSeconds(server.pid!);
+		const pg0 = postgresCpuSeconds();
 		const self0 = process.cpuUsage();
 		const t0 = performance.now();
 		let peak = rssStart;
-		const sampler = setInterval(() => (peak = Math.max(peak, rss(server.pid!))), 500);
+		const timeline: string[] = [];
+		let tick = 0;
+		const sampler = setInterval(() => {
+			const now = rss(server.pid!);
+			peak = Math.max(peak, now);
+			if (++tick % 30 === 0) timeline.push(`${tick / 2} s: ${(now / MB).toFixed(0)} MB`);
+		}, 500);
 		await drive(SECONDS, samples);
 		clearInterval(sampler);
 		const elapsed = (performance.now() - t0) / 1000;
 		const serverCpu = cpuSeconds(server.pid!) - cpu0;
+		const pgCpu = postgresCpuSeconds() - pg0;
 		const self = process.cpuUsage(self0);
 		const clientCpu = (self.user + self.system) / 1e6;
 		const rssEnd = rss(server.pid!);
@@ -256,12 +339,15 @@ async function main() {
 		console.log('\nslowest paths under load (p95):');
 		for (const [p, st] of slowest) console.log(row(`  ${p}`.slice(0, 22), st));
 		console.log(`  (${slowest.map(([p]) => p).join(', ')})`);
+		console.log('\nserver CPU per request, one at a time (idle server):');
+		for (const c of cost) console.log(`  ${c.path.padEnd(40)} ${c.cpuMs.toFixed(1).padStart(6)} ms CPU ${c.wallMs.toFixed(1).padStart(7)} ms wall`);
 		console.log(
 			`\nCPU over the measured run: server ${serverCpu.toFixed(1)} s of ${elapsed.toFixed(1)} s (${((100 * serverCpu) / elapsed).toFixed(0)} % of one core), ` +
-				`load generator ${clientCpu.toFixed(1)} s (${((100 * clientCpu) / elapsed).toFixed(0)} %); machine has ${(await import('node:os')).cpus().length} CPUs`
+				`PostgreSQL ${pgCpu.toFixed(1)} s (${((100 * pgCpu) / elapsed).toFixed(0)} %), load generator ${clientCpu.toFixed(1)} s (${((100 * clientCpu) / elapsed).toFixed(0)} %); machine has ${(await import('node:os')).cpus().length} CPUs`
 		);
 		console.log(`\nloaded/idle p95 ratio: page ${(loaded.page.p95 / base.page.p95).toFixed(1)}×, api ${(loaded.api.p95 / base.api.p95).toFixed(1)}×, upload ${(loaded.upload.p95 / base.upload.p95).toFixed(1)}×`);
 		const growth = (rssEnd - rssStart) / rssStart;
+		console.log(`server RSS every 15 s: ${timeline.join(', ')}`);
 		console.log(`server RSS: start ${(rssStart / MB).toFixed(1)} MB, end ${(rssEnd / MB).toFixed(1)} MB (${(growth * 100).toFixed(1)} %), peak ${(peak / MB).toFixed(1)} MB`);
 		const targets = [
 			['0 errors', all.errors === 0],

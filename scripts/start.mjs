@@ -1,5 +1,5 @@
 // `npm start`: dependencies, PostgreSQL on loopback, migrations, demo data on
-// an empty database, the mail fake, a production build, then `node build`.
+// an empty database, the mail fake, a production build, then scripts/serve.mjs (worker processes over build/).
 import { ensureDependencies, step, run, build, startChild, waitForHttp, mailEnv, root } from './lib/setup.mjs';
 import { join } from 'node:path';
 
@@ -49,7 +49,7 @@ if (useFake) {
 	);
 }
 step('Serving the production build');
-const server = await startChild('app server', 'node', ['build'], {
+const server = await startChild('app server', 'node', ['scripts/serve.mjs', 'build'], {
 	env,
 	ready: /Listening on/,
 	logFile: join(root, '.data', 'logs', 'app.log'),

@@ -1,5 +1,5 @@
 import { QueryTypes } from 'sequelize';
-import { getModels, getSequelize } from '../db';
+import { getSequelize } from '../db';
 
 /** A campaign as pages and the API see it. */
 export interface CampaignListItem {
@@ -65,16 +65,36 @@ export interface CampaignDetail {
 	configurations: { id: number; name: string; version: number; parentId: number | null; refArea: number | null; refSpan: number | null; refChord: number | null; momentRef: unknown }[];
 }
 
-/** One campaign with its facility and configurations, or null. */
+/** One campaign with its facility and configurations, or null: one statement (it is read on every campaign page and API call). */
 export async function getCampaign(id: number): Promise<CampaignDetail | null> {
-	const { Campaign, Facility, Configuration } = getModels();
-	const c = await Campaign.findByPk(id);
-	if (!c) return null;
-	const f = c.facilityId ? await Facility.findByPk(c.facilityId) : null;
-	const configs = await Configuration.findAll({ where: { campaignId: id }, order: [['name', 'ASC'], ['version', 'ASC']] });
+	const [row] = await getSequelize().query<{
+		id: number;
+		code: string;
+		name: string;
+		description: string | null;
+		kind: 'tunnel' | 'flight';
+		status: string;
+		planned_runs: number | null;
+		tolerances: Record<string, unknown> | null;
+		start_date: string | null;
+		end_date: string | null;
+		facility: CampaignDetail['facility'];
+		configurations: CampaignDetail['configurations'];
+	}>(
+		`SELECT c.id, c.code, c.name, c.description, c.kind, c.status, c.planned_runs, c.tolerances,
+		        c.start_date::text AS start_date, c.end_date::text AS end_date,
+		        (SELECT json_build_object('id', f.id, 'name', f.name, 'code', f.code, 'kind', f.kind, 'testSection', f.test_section, 'corrections', f.corrections)
+		           FROM facilities f WHERE f.id = c.facility_id) AS facility,
+		        (SELECT coalesce(json_agg(json_build_object('id', x.id, 'name', x.name, 'version', x.version, 'parentId', x.parent_id, 'refArea', x.ref_area,
+		                                                    'refSpan', x.ref_span, 'refChord', x.ref_chord, 'momentRef', x.moment_ref) ORDER BY x.name, x.version), '[]')
+		           FROM configurations x WHERE x.campaign_id = c.id) AS configurations
+		   FROM campaigns c WHERE c.id = :id`,
+		{ replacements: { id }, type: QueryTypes.SELECT }
+	);
+	if (!row) return null;
 	return {
-		campaign: { id: Number(c.id), code: c.code, name: c.name, description: c.description ?? null, kind: c.kind, status: c.status, plannedRuns: c.plannedRuns ?? null, tolerances: c.tolerances ?? {}, startDate: c.startDate ?? null, endDate: c.endDate ?? null },
-		facility: f ? { id: Number(f.id), name: f.name, code: f.code, kind: f.kind, testSection: f.testSection ?? null, corrections: f.corrections ?? null } : null,
-		configurations: configs.map((x) => ({ id: Number(x.id), name: x.name, version: x.version, parentId: x.parentId === null || x.parentId === undefined ? null : Number(x.parentId), refArea: x.refArea ?? null, refSpan: x.refSpan ?? null, refChord: x.refChord ?? null, momentRef: x.momentRef ?? null }))
+		campaign: { id: Number(row.id), code: row.code, name: row.name, description: row.description ?? null, kind: row.kind, status: row.status, plannedRuns: row.planned_runs ?? null, tolerances: row.tolerances ?? {}, startDate: row.start_date, endDate: row.end_date },
+		facility: row.facility ? { ...row.facility, id: Number(row.facility.id), testSection: row.facility.testSection ?? null, corrections: row.facility.corrections ?? null } : null,
+		configurations: row.configurations.map((x) => ({ ...x, id: Number(x.id), parentId: x.parentId === null ? null : Number(x.parentId), refArea: x.refArea ?? null, refSpan: x.refSpan ?? null, refChord: x.refChord ?? null, momentRef: x.momentRef ?? null }))
 	};
 }

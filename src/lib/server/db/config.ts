@@ -22,6 +22,11 @@ export function observeQueries(fn: QueryObserver | null): void {
 	observer = fn;
 }
 
+function poolMax(env: NodeJS.ProcessEnv = process.env): number {
+	const n = Number(env.SPANLINE_DB_POOL_MAX);
+	return Number.isInteger(n) && n > 0 && n <= 80 ? n : 10;
+}
+
 /** Sequelize options shared by the app, the scripts and the tests. */
 export function sequelizeOptions(): Options {
 	return {
@@ -34,7 +39,8 @@ export function sequelizeOptions(): Options {
 		define: { underscored: true },
 		// A down database must be reported within about 2 s, not hang a request.
 		dialectOptions: { connectionTimeoutMillis: 2000, statement_timeout: 30_000 },
-		pool: { max: 10, min: 0, acquire: 3000, idle: 10_000 },
+		// SPANLINE_DB_POOL_MAX connections per process (default 10); processes × pool must stay below PostgreSQL's max_connections (100).
+		pool: { max: poolMax(), min: 0, acquire: 3000, idle: 10_000 },
 		retry: { max: 0 }
 	};
 }

@@ -171,14 +171,19 @@ export async function listRuns(campaignId: number, q: { state?: RunState; kind?:
 	const clause = where.join(' AND ');
 	const r = { campaignId, state: q.state, kind: q.kind, limit: q.limit, offset: q.offset };
 	const sequelize = getSequelize();
-	const rows = await sequelize.query<{ id: string; campaign_id: string; run_number: string; kind: RunKind; state: RunState; is_tare: boolean; configuration_id: string | null; test_date: string | null; created_at: Date; point_count: string; version: number | null }>(
+	const rows = await sequelize.query<{ id: string; campaign_id: string; run_number: string; kind: RunKind; state: RunState; is_tare: boolean; configuration_id: string | null; test_date: string | null; created_at: Date; point_count: string; version: number | null; total: string }>(
 		`SELECT r.id, r.campaign_id, r.run_number, r.kind, r.state, r.is_tare, r.configuration_id, r.test_date, r.created_at,
-		        red.version, (SELECT count(*) FROM points p WHERE p.reduction_id = red.id) AS point_count
+		        red.version, (SELECT count(*) FROM points p WHERE p.reduction_id = red.id) AS point_count,
+		        count(*) OVER () AS total
 		   FROM runs r LEFT JOIN reductions red ON red.run_id = r.id AND red.is_current
 		  WHERE ${clause} ORDER BY r.run_number LIMIT :limit OFFSET :offset`,
 		{ replacements: r, type: QueryTypes.SELECT }
 	);
-	const [{ total }] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total FROM runs r WHERE ${clause}`, { replacements: r, type: QueryTypes.SELECT });
+	// The window count rides along with the page; only a page past the end needs its own count.
+	const total =
+		rows.length > 0
+			? rows[0].total
+			: (await sequelize.query<{ total: string }>(`SELECT count(*) AS total FROM runs r WHERE ${clause}`, { replacements: r, type: QueryTypes.SELECT }))[0].total;
 	return {
 		items: rows.map((x) => ({
 			id: Number(x.id),
@@ -233,21 +238,21 @@ interface PointRow {
 	values: Record<string, unknown> | null;
 }
 
-/** A reduction's points, in two plain statements (no model instances: a run can have thousands of points). */
+/** A reduction's points in one statement (points as one JSON array: a run can have thousands, and no model instances are built). */
 export async function getPoints(runId: number, version?: number): Promise<{ reduction: ReductionDto; points: PointDto[] } | null> {
-	const sequelize = getSequelize();
-	const [red] = await sequelize.query<{ id: string; version: number; settings: Record<string, unknown>; fits: Record<string, unknown> | null; corrections: Record<string, unknown> | null }>(
-		`SELECT id, version, settings, fits, corrections FROM reductions WHERE run_id = :runId AND ${version ? 'version = :version' : 'is_current'}`,
+	const [red] = await getSequelize().query<{ id: number; version: number; settings: Record<string, unknown>; fits: Record<string, unknown> | null; corrections: Record<string, unknown> | null; points: PointRow[] }>(
+		`SELECT d.id, d.version, d.settings, d.fits, d.corrections,
+		        (SELECT coalesce(json_agg(json_build_object('idx', p.idx, 'alpha_deg', p.alpha_deg, 'cl', p.cl, 'cd', p.cd, 'cm', p.cm, 'q_pa', p.q_pa,
+		                                                    'velocity', p.velocity, 'reynolds', p.reynolds, 'mach', p.mach, 'uncertainty', p.uncertainty,
+		                                                    'flags', p.flags, 'excluded', p.excluded, 'values', p."values") ORDER BY p.idx), '[]')
+		           FROM points p WHERE p.reduction_id = d.id) AS points
+		   FROM reductions d WHERE d.run_id = :runId AND ${version ? 'd.version = :version' : 'd.is_current'}`,
 		{ replacements: { runId, version: version ?? null }, type: QueryTypes.SELECT }
 	);
 	if (!red) return null;
-	const pts = await sequelize.query<PointRow>(
-		`SELECT idx, alpha_deg, cl, cd, cm, q_pa, velocity, reynolds, mach, uncertainty, flags, excluded, "values"
-		   FROM points WHERE reduction_id = :id ORDER BY idx`,
-		{ replacements: { id: red.id }, type: QueryTypes.SELECT }
-	);
+	const pts = red.points;
 	return {
-		reduction: reductionDto({ ...red, id: Number(red.id) }),
+		reduction: reductionDto(red),
 		points: pts.map((p) => {
 			const v = (p.values ?? {}) as Record<string, unknown> & { corrections?: { liftInterference: { dAlphaDeg: number; dCD: number }; streamlineCurvature: { dAlphaDeg: number }; blockage: { epsilon: number } } };
 			const c = v.corrections;
