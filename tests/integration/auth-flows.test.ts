@@ -133,7 +133,7 @@ describe('sign-in link by e-mail', () => {
 
 	it('puts only the app’s own origin into a sign-in link, whatever Host or X-Forwarded-* the request claims', async () => {
 		const person = await freshPerson('program_manager');
-		const forged = [{ host: 'evil.example' }, { 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'https' }];
+		const forged: Record<string, string>[] = [{ host: 'evil.example' }, { 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'https' }];
 		for (const headers of forged) {
 			const c = new Client();
 			const res = await c.request('POST', '/signin?/link', {

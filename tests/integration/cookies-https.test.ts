@@ -172,7 +172,7 @@ describe('session cookie under an https ORIGIN (own server)', () => {
 	});
 
 	it('stays Secure when a request claims X-Forwarded-Proto: http or another Host', async () => {
-		for (const extra of [{ 'x-forwarded-proto': 'http' }, { 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'http' }]) {
+		for (const extra of [{ 'x-forwarded-proto': 'http' }, { 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'http' }] as Record<string, string>[]) {
 			const res = await signIn(local, httpsOrigin, extra);
 			expect(res.status, JSON.stringify(extra)).toBe(302);
 			const session = parseSetCookies(res).find((c) => c.name.endsWith('authjs.session-token'));
