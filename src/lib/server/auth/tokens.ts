@@ -3,11 +3,12 @@
  * with the owner's role. The token is shown once when created; the database
  * keeps only its SHA-256 digest and a short prefix to recognise it by.
  */
-import { QueryTypes, type Transaction } from 'sequelize';
+import { type Transaction } from 'sequelize';
 import { getModels, getSequelize } from '$lib/server/db';
 import * as audit from '$lib/server/audit';
 import { digest, newSecret } from './secrets';
 import { toSessionUser, type SessionUser } from './users';
+import { select } from '$lib/server/db/sql';
 
 export const TOKEN_PREFIX = 'spl_';
 /** Writing last_used_at on every call would turn each API read into a write; a minute is fine-grained enough. */
@@ -160,16 +161,16 @@ export async function revokeToken(ctx: Context, id: number, mayRevokeOthers: boo
 export async function userForToken(token: string): Promise<SessionUser | null> {
 	if (!token.startsWith(TOKEN_PREFIX) || token.length > 200) return null;
 	// One plain statement: it runs on every API request, so no model instances.
-	const [row] = await getSequelize().query<{ id: string; name: string | null; email: string; role: string; token_id: string; last_used_at: Date | null }>(
+	const [row] = await select<{ id: string; name: string | null; email: string; role: string; token_id: string; last_used_at: Date | null }>(
 		`SELECT u.id, u.name, u.email, u.role, t.id AS token_id, t.last_used_at
 		   FROM api_tokens t JOIN users u ON u.id = t.user_id
-		  WHERE t.token_hash = :hash AND t.revoked_at IS NULL AND (t.expires_at IS NULL OR t.expires_at > now()) AND u.active`,
-		{ replacements: { hash: digest(token) }, type: QueryTypes.SELECT }
+		  WHERE t.token_hash = $1 AND t.revoked_at IS NULL AND (t.expires_at IS NULL OR t.expires_at > now()) AND u.active`,
+		[digest(token)]
 	);
 	if (!row) return null;
 	const now = Date.now();
 	if (!row.last_used_at || now - new Date(row.last_used_at).getTime() > LAST_USED_RESOLUTION_MS) {
-		await getSequelize().query('UPDATE api_tokens SET last_used_at = now() WHERE id = :id', { replacements: { id: row.token_id } });
+		await select('UPDATE api_tokens SET last_used_at = now() WHERE id = $1', [row.token_id]);
 	}
 	return toSessionUser(row);
 }

@@ -1,5 +1,4 @@
-import { QueryTypes } from 'sequelize';
-import { getSequelize } from '../db';
+import { select } from '../db/sql';
 
 /** A campaign as pages and the API see it. */
 export interface CampaignListItem {
@@ -32,7 +31,7 @@ interface CampaignRow {
 
 /** All campaigns, newest first, with their run counts (one query, no N+1). */
 export async function listCampaigns(): Promise<CampaignListItem[]> {
-	const rows = await getSequelize().query<CampaignRow>(
+	const rows = await select<CampaignRow>(
 		`SELECT c.id, c.code, c.name, c.kind, c.status, f.name AS facility_name, c.planned_runs,
 		        c.start_date, c.end_date,
 		        COUNT(r.id) FILTER (WHERE NOT COALESCE(r.is_tare, false)) AS run_count,
@@ -41,8 +40,7 @@ export async function listCampaigns(): Promise<CampaignListItem[]> {
 		   LEFT JOIN facilities f ON f.id = c.facility_id
 		   LEFT JOIN runs r ON r.campaign_id = c.id
 		  GROUP BY c.id, f.name
-		  ORDER BY c.start_date DESC NULLS LAST, c.id DESC`,
-		{ type: QueryTypes.SELECT }
+		  ORDER BY c.start_date DESC NULLS LAST, c.id DESC`
 	);
 	return rows.map((r) => ({
 		id: Number(r.id),
@@ -67,7 +65,7 @@ export interface CampaignDetail {
 
 /** One campaign with its facility and configurations, or null: one statement (it is read on every campaign page and API call). */
 export async function getCampaign(id: number): Promise<CampaignDetail | null> {
-	const [row] = await getSequelize().query<{
+	const [row] = await select<{
 		id: number;
 		code: string;
 		name: string;
@@ -88,8 +86,8 @@ export async function getCampaign(id: number): Promise<CampaignDetail | null> {
 		        (SELECT coalesce(json_agg(json_build_object('id', x.id, 'name', x.name, 'version', x.version, 'parentId', x.parent_id, 'refArea', x.ref_area,
 		                                                    'refSpan', x.ref_span, 'refChord', x.ref_chord, 'momentRef', x.moment_ref) ORDER BY x.name, x.version), '[]')
 		           FROM configurations x WHERE x.campaign_id = c.id) AS configurations
-		   FROM campaigns c WHERE c.id = :id`,
-		{ replacements: { id }, type: QueryTypes.SELECT }
+		   FROM campaigns c WHERE c.id = $1`,
+		[id]
 	);
 	if (!row) return null;
 	return {

@@ -22,6 +22,11 @@ export function observeQueries(fn: QueryObserver | null): void {
 	observer = fn;
 }
 
+/** Tell the observer about a statement run outside Sequelize's query() (see sql.ts). */
+export function reportQuery(ms: number): void {
+	observer?.(ms);
+}
+
 function poolMax(env: NodeJS.ProcessEnv = process.env): number {
 	const n = Number(env.SPANLINE_DB_POOL_MAX);
 	return Number.isInteger(n) && n > 0 && n <= 80 ? n : 10;

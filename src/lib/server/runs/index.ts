@@ -18,6 +18,7 @@ import { fromImportError, MAX_XLSX_BYTES, resolveMapping } from './import';
 import { reduce, ReferenceMissing } from './reduce';
 import { loadReduceContext, readSamples, writeReduction, type Actor } from './store';
 import type { ReductionSettingsInput } from './schemas';
+import { select } from '../db/sql';
 
 export { importRun, maxUploadBytes, type ImportInput, type ImportProgress, type ImportResult } from './import';
 export { RunError } from './errors';
@@ -115,7 +116,7 @@ interface RunDetailRow {
 
 /** Run detail in one statement (run, configuration, source files, reduction versions with authors, current reduction). */
 export async function getRun(id: number, role: Role | null): Promise<RunDetail | null> {
-	const [row] = await getSequelize().query<RunDetailRow>(
+	const [row] = await select<RunDetailRow>(
 		`SELECT r.id, r.campaign_id, r.run_number, r.kind, r.state, r.is_tare, r.tare_run_id, r.repeat_of_run_id, r.conditions, r.notes,
 		        c.id AS config_id, c.name AS config_name, c.version AS config_version,
 		        (SELECT coalesce(json_agg(json_build_object('id', f.id, 'name', f.name, 'size', f.size, 'sha256', f.sha256, 'sheet', f.sheet,
@@ -128,8 +129,8 @@ export async function getRun(id: number, role: Role | null): Promise<RunDetail |
 		   FROM runs r
 		   LEFT JOIN configurations c ON c.id = r.configuration_id
 		   LEFT JOIN reductions cur ON cur.run_id = r.id AND cur.is_current
-		  WHERE r.id = :id`,
-		{ replacements: { id }, type: QueryTypes.SELECT }
+		  WHERE r.id = $1`,
+		[id]
 	);
 	if (!row) return null;
 	const c = (row.conditions ?? {}) as Record<string, unknown>;
@@ -240,14 +241,14 @@ interface PointRow {
 
 /** A reduction's points in one statement (points as one JSON array: a run can have thousands, and no model instances are built). */
 export async function getPoints(runId: number, version?: number): Promise<{ reduction: ReductionDto; points: PointDto[] } | null> {
-	const [red] = await getSequelize().query<{ id: number; version: number; settings: Record<string, unknown>; fits: Record<string, unknown> | null; corrections: Record<string, unknown> | null; points: PointRow[] }>(
+	const [red] = await select<{ id: number; version: number; settings: Record<string, unknown>; fits: Record<string, unknown> | null; corrections: Record<string, unknown> | null; points: PointRow[] }>(
 		`SELECT d.id, d.version, d.settings, d.fits, d.corrections,
 		        (SELECT coalesce(json_agg(json_build_object('idx', p.idx, 'alpha_deg', p.alpha_deg, 'cl', p.cl, 'cd', p.cd, 'cm', p.cm, 'q_pa', p.q_pa,
 		                                                    'velocity', p.velocity, 'reynolds', p.reynolds, 'mach', p.mach, 'uncertainty', p.uncertainty,
 		                                                    'flags', p.flags, 'excluded', p.excluded, 'values', p."values") ORDER BY p.idx), '[]')
 		           FROM points p WHERE p.reduction_id = d.id) AS points
-		   FROM reductions d WHERE d.run_id = :runId AND ${version ? 'd.version = :version' : 'd.is_current'}`,
-		{ replacements: { runId, version: version ?? null }, type: QueryTypes.SELECT }
+		   FROM reductions d WHERE d.run_id = $1 AND ${version ? 'd.version = $2' : 'd.is_current'}`,
+		version ? [runId, version] : [runId]
 	);
 	if (!red) return null;
 	const pts = red.points;
