@@ -6,6 +6,7 @@ import { apiError } from '$lib/server/http';
 import { env } from '$env/dynamic/private';
 import { handle as authHandle, usesSecureCookies } from './auth';
 import { readSession } from '$lib/server/auth/session';
+import * as identity from '$lib/server/auth/identity-cache';
 import * as tokens from '$lib/server/auth/tokens';
 import * as signInRules from '$lib/server/auth/sign-in';
 import * as links from '$lib/server/auth/links';
@@ -33,6 +34,8 @@ const MAIL_RETRY_INTERVAL_MS = 15_000;
 export const init: ServerInit = async () => {
 	if (building) return;
 	observeQueries(countQuery);
+	// Remembered identities, dropped on the database's change announcements (auth/identity-cache.ts).
+	identity.startListening(env.DATABASE_URL);
 	// A small retry loop for mail that could not be delivered at once.
 	const timer = setInterval(() => {
 		mail.deliverDue().catch((err) => log().error({ err }, 'mail retry failed'));
@@ -45,6 +48,7 @@ export const init: ServerInit = async () => {
 	process.once('sveltekit:shutdown', () => {
 		clearInterval(timer);
 		notifications.stopDigestScheduler();
+		identity.stopListening().catch(() => {});
 		closeSequelize().catch((err) => log().warn({ err }, 'closing the database pool at shutdown'));
 	});
 };
@@ -124,7 +128,7 @@ const identify: Handle = async ({ event, resolve }) => {
 	}
 	const id = await sessionUserId(event);
 	if (id) {
-		const user = await signInRules.activeUser(id);
+		const user = await identity.personById(id, signInRules.activeUser);
 		if (user) {
 			event.locals.user = user;
 		} else {

@@ -9,6 +9,7 @@ import * as audit from '$lib/server/audit';
 import { digest, newSecret } from './secrets';
 import { toSessionUser, type SessionUser } from './users';
 import { select } from '$lib/server/db/sql';
+import * as identity from './identity-cache';
 
 export const TOKEN_PREFIX = 'spl_';
 /** Writing last_used_at on every call would turn each API read into a write; a minute is fine-grained enough. */
@@ -160,17 +161,30 @@ export async function revokeToken(ctx: Context, id: number, mayRevokeOthers: boo
  */
 export async function userForToken(token: string): Promise<SessionUser | null> {
 	if (!token.startsWith(TOKEN_PREFIX) || token.length > 200) return null;
+	const hash = digest(token);
+	const known = identity.tokenByHash(hash);
+	if (known) {
+		if (known.lastUsedAt === null || Date.now() - known.lastUsedAt > LAST_USED_RESOLUTION_MS) {
+			known.lastUsedAt = Date.now();
+			await select('UPDATE api_tokens SET last_used_at = now() WHERE id = $1', [known.tokenId]);
+		}
+		return known.user;
+	}
 	// One plain statement: it runs on every API request, so no model instances.
-	const [row] = await select<{ id: string; name: string | null; email: string; role: string; token_id: string; last_used_at: Date | null }>(
-		`SELECT u.id, u.name, u.email, u.role, t.id AS token_id, t.last_used_at
+	const [row] = await select<{ id: string; name: string | null; email: string; role: string; token_id: string; last_used_at: Date | null; expires_at: Date | null }>(
+		`SELECT u.id, u.name, u.email, u.role, t.id AS token_id, t.last_used_at, t.expires_at
 		   FROM api_tokens t JOIN users u ON u.id = t.user_id
 		  WHERE t.token_hash = $1 AND t.revoked_at IS NULL AND (t.expires_at IS NULL OR t.expires_at > now()) AND u.active`,
-		[digest(token)]
+		[hash]
 	);
 	if (!row) return null;
 	const now = Date.now();
-	if (!row.last_used_at || now - new Date(row.last_used_at).getTime() > LAST_USED_RESOLUTION_MS) {
+	let lastUsedAt = row.last_used_at ? new Date(row.last_used_at).getTime() : null;
+	if (lastUsedAt === null || now - lastUsedAt > LAST_USED_RESOLUTION_MS) {
 		await select('UPDATE api_tokens SET last_used_at = now() WHERE id = $1', [row.token_id]);
+		lastUsedAt = now;
 	}
-	return toSessionUser(row);
+	const user = toSessionUser(row);
+	identity.rememberToken(hash, { user, tokenId: String(row.token_id), expiresAt: row.expires_at ? new Date(row.expires_at).getTime() : null, lastUsedAt });
+	return user;
 }

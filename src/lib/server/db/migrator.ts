@@ -14,6 +14,7 @@ import * as m20261202T0300 from './migrations/2026-12-02T0300-source-file-layout
 import * as m20261202T0310 from './migrations/2026-12-02T0310-correlation-current-and-calibrations';
 import * as m20261202T0400 from './migrations/2026-12-02T0400-notification-preferences-and-digests';
 import * as m20261202T0500 from './migrations/2026-12-02T0500-samples-without-row-checks';
+import * as m20261202T0600 from './migrations/2026-12-02T0600-auth-change-notices';
 import type { MigrationModule } from './migrations/types';
 
 /** Append new migrations at the end, in timestamp order. */
@@ -26,7 +27,8 @@ export const MIGRATIONS: ReadonlyArray<{ name: string; module: MigrationModule }
 	{ name: '2026-12-02T0300-source-file-layout', module: m20261202T0300 },
 	{ name: '2026-12-02T0310-correlation-current-and-calibrations', module: m20261202T0310 },
 	{ name: '2026-12-02T0400-notification-preferences-and-digests', module: m20261202T0400 },
-	{ name: '2026-12-02T0500-samples-without-row-checks', module: m20261202T0500 }
+	{ name: '2026-12-02T0500-samples-without-row-checks', module: m20261202T0500 },
+	{ name: '2026-12-02T0600-auth-change-notices', module: m20261202T0600 }
 ];
 
 export const MIGRATIONS_TABLE = 'schema_migrations';
