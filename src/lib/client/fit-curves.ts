@@ -84,6 +84,26 @@ function fromCurve(raw: unknown, xKey: string, yKey: string, tx?: (x: number) =>
 	return { line: rows.map((r) => ({ x: r.x, y: r.y })), band };
 }
 
+/**
+ * Chart points (x, y) of the points `keep` selects, skipping any whose x or y
+ * is missing: a reduction stores null where a point had no value.
+ */
+export function plotPoints(points: readonly Point[], x: (p: Point) => number | null, y: (p: Point) => number | null, keep: (p: Point) => boolean = () => true): XY[] {
+	const out: XY[] = [];
+	for (const p of points) {
+		if (!keep(p)) continue;
+		const px = x(p);
+		const py = y(p);
+		if (px !== null && py !== null && Number.isFinite(px) && Number.isFinite(py)) out.push({ x: px, y: py });
+	}
+	return out;
+}
+
+/** The non-excluded points' values of one quantity, missing ones left out. */
+function usedValues(points: readonly Point[], of: (p: Point) => number | null): number[] {
+	return plotPoints(points, of, of, (p) => !p.excluded).map((v) => v.x);
+}
+
 function samples(lo: number, hi: number, n = 41): number[] {
 	if (!(hi > lo)) return [lo];
 	return Array.from({ length: n }, (_, i) => lo + ((hi - lo) * i) / (n - 1));
@@ -101,7 +121,7 @@ export function liftCurve(fits: Record<string, unknown> | null | undefined, poin
 	const a0 = val(a0E);
 	if (a === null || a0 === null) return null;
 	const range = fit.linearRange as { alphaMinDeg?: number; alphaMaxDeg?: number } | undefined;
-	const used = points.filter((p) => !p.excluded).map((p) => p.alphaDeg);
+	const used = usedValues(points, (p) => p.alphaDeg);
 	const lo = range?.alphaMinDeg ?? Math.min(...used);
 	const hi = range?.alphaMaxDeg ?? Math.max(...used);
 	if (!Number.isFinite(lo) || !Number.isFinite(hi)) return null;
@@ -138,7 +158,7 @@ export function dragPolar(
 	const cd0 = val(cd0E);
 	const k = val(kE);
 	if (cd0 === null || k === null) return null;
-	const cls = points.filter((p) => !p.excluded).map((p) => p.CL);
+	const cls = usedValues(points, (p) => p.CL);
 	if (cls.length === 0) return null;
 	const lo = Math.min(...cls);
 	const hi = Math.max(...cls);

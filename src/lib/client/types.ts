@@ -1,7 +1,8 @@
 /** Shapes of the v1 API answers the pages read (docs/api.md). */
 
-export type RunKind = 'tunnel' | 'flight';
-export type RunState = 'imported' | 'reduced' | 'reviewed' | 'accepted' | 'returned';
+// The run API's shapes are defined once, for server and pages alike.
+import type { RunKind } from '$lib/run-types';
+export type { RunKind, RunState, RunSummary, RunDetail, PointsAnswer, RunConditions as Conditions, ReductionDto as Reduction, PointDto as Point } from '$lib/run-types';
 
 export interface MappingColumn {
 	index: number;
@@ -28,21 +29,6 @@ export interface Preview {
 	missing: string[];
 }
 
-export interface RunSummary {
-	id: number;
-	campaignId: number;
-	runNumber: number | string;
-	kind: RunKind;
-	state: RunState;
-	isTare?: boolean;
-	configuration?: { id: number; name: string; version?: number } | null;
-	configurationName?: string | null;
-	pointCount?: number | null;
-	importedAt?: string | null;
-	createdAt?: string | null;
-	[key: string]: unknown;
-}
-
 export interface Page<T> {
 	items: T[];
 	total: number;
@@ -50,75 +36,7 @@ export interface Page<T> {
 	offset: number;
 }
 
-export interface Conditions {
-	qPa: number | null;
-	velocity: number | null;
-	density: number | null;
-	temperatureK: number | null;
-	pressurePa: number | null;
-	reynolds: number | null;
-	mach: number | null;
-}
-
-export interface Reduction {
-	id: number;
-	version: number;
-	settings: Record<string, unknown>;
-	fits: Record<string, unknown> | null;
-	corrections: Record<string, unknown> | null;
-}
-
-export interface RunDetail {
-	id: number;
-	campaignId: number;
-	runNumber: number | string;
-	kind: RunKind;
-	state: RunState;
-	isTare: boolean;
-	tareRunId: number | null;
-	repeatOfRunId: number | null;
-	configuration: { id: number; name: string; version: number } | null;
-	conditions: Conditions;
-	sourceFiles: { id: number; name: string; size: number; sha256: string; sheet: string | null; storage: string }[];
-	currentReduction: Reduction | null;
-	reductions: { id: number; version: number; createdAt: string; createdBy: string | null; createdByName: string | null; isCurrent: boolean; settings?: Record<string, unknown> }[];
-	notes: string | null;
-	allowedTransitions: string[];
-}
-
-export interface Point {
-	idx: number;
-	alphaDeg: number;
-	CL: number;
-	CD: number;
-	Cm: number | null;
-	qPa: number | null;
-	velocity: number | null;
-	reynolds: number | null;
-	mach: number | null;
-	uncertainty: { CL?: number | null; CD?: number | null; alphaDeg?: number | null } | null;
-	corrections: { deltaAlphaDeg?: number | null; deltaCD?: number | null; blockage?: number | null } | null;
-	flags: string[] | null;
-	excluded: boolean;
-	/** Stored detail: uncorrected values, forces, each correction's contribution. */
-	values?: {
-		row?: number;
-		uncorrected?: { alphaDeg?: number | null; CL?: number | null; CD?: number | null; Cm?: number | null; qPa?: number | null };
-		corrections?: {
-			solidBlockage?: { epsilon: number };
-			wakeBlockage?: { epsilon: number; method: string };
-			blockage?: { epsilon: number; dq: number; dCL: number; dCD: number; dCm: number };
-			liftInterference?: { dAlphaDeg: number; dCD: number };
-			streamlineCurvature?: { dAlphaDeg: number; dCm: number };
-		};
-		[key: string]: unknown;
-	};
-}
-
-export interface PointsAnswer {
-	reduction: Reduction;
-	points: Point[];
-}
+import type { RunDetail } from '$lib/run-types';
 
 export interface ImportResult {
 	run: RunDetail;

@@ -19,50 +19,13 @@ import { reduce, ReferenceMissing } from './reduce';
 import { loadReduceContext, readSamples, writeReduction, type Actor } from './store';
 import type { ReductionSettingsInput } from './schemas';
 import { select } from '../db/sql';
+import type { PointDto, PointValues, ReductionDto, RunDetail, RunSummary } from '../../run-types';
+
+export type { PointDto, ReductionDto, RunDetail, RunSummary } from '../../run-types';
 
 export { importRun, maxUploadBytes, type ImportInput, type ImportProgress, type ImportResult } from './import';
 export { RunError } from './errors';
 export type { Actor } from './store';
-
-export interface RunSummary {
-	id: number;
-	campaignId: number;
-	runNumber: string;
-	kind: RunKind;
-	state: RunState;
-	isTare: boolean;
-	configurationId: number | null;
-	testDate: string | null;
-	createdAt: string;
-	pointCount: number;
-	currentVersion: number | null;
-}
-
-export interface ReductionDto {
-	id: number;
-	version: number;
-	settings: Record<string, unknown>;
-	fits: Record<string, unknown> | null;
-	corrections: Record<string, unknown> | null;
-}
-
-export interface RunDetail {
-	id: number;
-	campaignId: number;
-	runNumber: string;
-	kind: RunKind;
-	state: RunState;
-	isTare: boolean;
-	tareRunId: number | null;
-	repeatOfRunId: number | null;
-	configuration: { id: number; name: string; version: number } | null;
-	conditions: { qPa: number | null; velocity: number | null; density: number | null; temperatureK: number | null; pressurePa: number | null; reynolds: number | null; mach: number | null };
-	sourceFiles: { id: number; name: string; size: number; sha256: string; sheet: string | null; storage: string; rowCount: number | null }[];
-	currentReduction: ReductionDto | null;
-	reductions: { id: number; version: number; createdAt: string; createdBy: string | null; createdByName: string | null; isCurrent: boolean }[];
-	notes: string | null;
-	allowedTransitions: string[];
-}
 
 /**
  * The run state machine (DESIGN.md "Roles"): test engineers (editRuns) move
@@ -205,24 +168,6 @@ export async function listRuns(campaignId: number, q: { state?: RunState; kind?:
 	};
 }
 
-export interface PointDto {
-	idx: number;
-	alphaDeg: number | null;
-	CL: number | null;
-	CD: number | null;
-	Cm: number | null;
-	qPa: number | null;
-	velocity: number | null;
-	reynolds: number | null;
-	mach: number | null;
-	uncertainty: Record<string, number> | null;
-	corrections: { deltaAlphaDeg: number; deltaCD: number; blockage: number } | null;
-	flags: string[];
-	excluded: boolean;
-	values: Record<string, unknown>;
-}
-
-/** Points of the current reduction, or of `version`. Null when the run or version does not exist. */
 interface PointRow {
 	idx: number;
 	alpha_deg: number | null;
@@ -239,7 +184,7 @@ interface PointRow {
 	values: Record<string, unknown> | null;
 }
 
-/** A reduction's points in one statement (points as one JSON array: a run can have thousands, and no model instances are built). */
+/** Points of the current reduction, or of `version` (null when the run or version does not exist), in one statement (points as one JSON array: a run can have thousands, and no model instances are built). */
 export async function getPoints(runId: number, version?: number): Promise<{ reduction: ReductionDto; points: PointDto[] } | null> {
 	const [red] = await select<{ id: number; version: number; settings: Record<string, unknown>; fits: Record<string, unknown> | null; corrections: Record<string, unknown> | null; points: PointRow[] }>(
 		`SELECT d.id, d.version, d.settings, d.fits, d.corrections,
@@ -255,7 +200,7 @@ export async function getPoints(runId: number, version?: number): Promise<{ redu
 	return {
 		reduction: reductionDto(red),
 		points: pts.map((p) => {
-			const v = (p.values ?? {}) as Record<string, unknown> & { corrections?: { liftInterference: { dAlphaDeg: number; dCD: number }; streamlineCurvature: { dAlphaDeg: number }; blockage: { epsilon: number } } };
+			const v = (p.values ?? {}) as PointValues;
 			const c = v.corrections;
 			return {
 				idx: p.idx,
@@ -268,7 +213,10 @@ export async function getPoints(runId: number, version?: number): Promise<{ redu
 				reynolds: p.reynolds ?? null,
 				mach: p.mach ?? null,
 				uncertainty: p.uncertainty ?? null,
-				corrections: c ? { deltaAlphaDeg: c.liftInterference.dAlphaDeg + c.streamlineCurvature.dAlphaDeg, deltaCD: c.liftInterference.dCD, blockage: c.blockage.epsilon } : null,
+				corrections:
+					c?.liftInterference && c.streamlineCurvature && c.blockage
+						? { deltaAlphaDeg: c.liftInterference.dAlphaDeg + c.streamlineCurvature.dAlphaDeg, deltaCD: c.liftInterference.dCD, blockage: c.blockage.epsilon }
+						: null,
 				flags: p.flags,
 				excluded: p.excluded,
 				values: v

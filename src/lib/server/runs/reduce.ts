@@ -22,6 +22,7 @@ import { correctTunnelPoint, type TunnelSettings, type CorrectionContributions }
 import { detectSteadySegments, reduceFlightPoint, type SteadySegment } from '../../aero/flight-reduction';
 import type { ReductionSettingsInput } from './schemas';
 import { coefficientPointUncertainty, extent, fitReduction, flightPointUncertainty, resolveUncertainty, tunnelPointUncertainty, type PointUncertainty } from './fits';
+import type { PointHeadline } from '../../run-types';
 
 const DEG = Math.PI / 180;
 
@@ -56,21 +57,10 @@ export interface ReduceContext {
 	tare: TarePoint[] | null;
 }
 
-export interface PointOut {
-	idx: number;
-	alphaDeg: number | null;
-	CL: number | null;
-	CD: number | null;
-	Cm: number | null;
-	qPa: number | null;
-	velocity: number | null;
-	reynolds: number | null;
-	mach: number | null;
+export interface PointOut extends PointHeadline {
 	values: Record<string, unknown>;
 	/** Expanded (k = 2) uncertainty of CL, CD, α (and Cm), or null when it cannot be estimated. */
 	uncertainty: PointUncertainty | null;
-	flags: string[];
-	excluded: boolean;
 }
 
 export interface ReductionOut {
