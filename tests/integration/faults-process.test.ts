@@ -157,7 +157,21 @@ describe('SIGKILL in the middle of a large import', () => {
 				server.kill('SIGKILL');
 			}
 		});
+		// Watchdog: if the server stops reading the body before the kill point (seen once in a full
+		// run, cause not found), say what the database sessions were doing instead of timing out.
+		let stalled = '';
+		const watchdog = setTimeout(async () => {
+			if (killedAt) return;
+			const { rows } = await db.query(
+				`SELECT pid, state, wait_event_type, wait_event, now() - xact_start AS in_tx, left(query, 120) AS query
+				   FROM pg_stat_activity WHERE datname = current_database() AND pid <> pg_backend_pid() AND state <> 'idle'`
+			);
+			stalled = `the upload stalled before the kill point; database sessions: ${JSON.stringify(rows)}; server log tail: ${readFileSync(logFile(port), 'utf8').slice(-1500)}`;
+			server.kill('SIGKILL');
+		}, 60_000);
 		await expect(upload(port, token, body, 'K-1', 'big-run.csv')).rejects.toThrow();
+		clearTimeout(watchdog);
+		expect(stalled).toBe('');
 		await once(server, 'exit').catch(() => undefined);
 		expect(server.signalCode).toBe('SIGKILL');
 		expect(killedAt).toBeGreaterThanOrEqual(0.5);
