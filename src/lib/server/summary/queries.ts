@@ -167,6 +167,16 @@ export const SNAPSHOT_SQL = `
 WITH fp AS (SELECT ${FINGERPRINT_SQL} AS fingerprint)
 SELECT fp.fingerprint, s.body FROM fp LEFT JOIN summary_snapshots s ON s.campaign_id = :campaignId AND s.fingerprint = fp.fingerprint`;
 
+/**
+ * As SNAPSHOT_SQL, but the body is left out when the fingerprint equals
+ * `:known` (the one this process already holds): an 800 KB body need not
+ * cross the connection again. Replacements: `campaignId`, `known`.
+ */
+export const SNAPSHOT_IF_CHANGED_SQL = `
+WITH fp AS (SELECT ${FINGERPRINT_SQL} AS fingerprint)
+SELECT fp.fingerprint, (fp.fingerprint = :known) AS same, CASE WHEN fp.fingerprint = :known THEN NULL ELSE s.body END AS body
+  FROM fp LEFT JOIN summary_snapshots s ON s.campaign_id = :campaignId AND s.fingerprint = fp.fingerprint`;
+
 /** Store a computed body. Replacements: `campaignId`, `fingerprint`, `body`. */
 export const STORE_SNAPSHOT_SQL = `
 INSERT INTO summary_snapshots (campaign_id, fingerprint, body, computed_at) VALUES (:campaignId, :fingerprint, :body, now())
