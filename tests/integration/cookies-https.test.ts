@@ -15,24 +15,21 @@
 // open: over http the cookie carries no `__Secure-` prefix (a browser rejects
 // a `__Secure-` cookie without Secure) and it signs the next request in.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawn, type ChildProcess } from 'node:child_process';
-import { once } from 'node:events';
-import { closeSync, mkdirSync, openSync, readFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { join } from 'node:path';
 import { ensureEnv, projectRoot } from '../../scripts/lib/env.mjs';
 import { demoAccount, testAddress } from '../support/session';
 import { baseUrl } from '../support/env';
+import { ownServer, type OwnServer } from '../support/own-server';
 
 const fileEnv = ensureEnv() as Record<string, string>;
 const engineer = demoAccount('test_engineer');
-let server: ChildProcess | null = null;
+let server: OwnServer | null = null;
 let port = 0;
 /** Where the test connects (plain http on loopback). */
 let local = '';
 /** What the app believes it is served as. */
 let httpsOrigin = '';
-let logPath = '';
 
 /** A free loopback port from 4300–4399 (a range no other test or script uses). */
 async function freePort(): Promise<number> {
@@ -95,38 +92,15 @@ beforeAll(async () => {
 	port = await freePort();
 	local = `http://127.0.0.1:${port}`;
 	httpsOrigin = `https://127.0.0.1:${port}`;
-	logPath = join(projectRoot, '.data', 'test-logs', `cookies-https-server-${port}.log`);
-	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
-	const fd = openSync(logPath, 'w');
-	server = spawn('node', ['build'], {
-		cwd: projectRoot,
-		env: {
-			...process.env,
-			AUTH_SECRET: process.env.AUTH_SECRET ?? fileEnv.AUTH_SECRET,
-			PORT: String(port),
-			HOST: '127.0.0.1',
-			ORIGIN: httpsOrigin
-		},
-		stdio: ['ignore', fd, fd]
+	server = await ownServer({
+		port,
+		logPath: join(projectRoot, '.data', 'test-logs', `cookies-https-server-${port}.log`),
+		env: { AUTH_SECRET: process.env.AUTH_SECRET ?? fileEnv.AUTH_SECRET, ORIGIN: httpsOrigin }
 	});
-	closeSync(fd);
-	for (const until = Date.now() + 30_000; ; ) {
-		if (server.exitCode !== null) throw new Error(`own server exited with ${server.exitCode}: ${readFileSync(logPath, 'utf8').slice(-2000)}`);
-		try {
-			if ((await fetch(`${local}/api/v1/health`)).ok) break;
-		} catch {
-			/* not listening yet */
-		}
-		if (Date.now() > until) throw new Error(`own server did not start; see ${logPath}`);
-		await new Promise((r) => setTimeout(r, 200));
-	}
 });
 
 afterAll(async () => {
-	if (server && server.exitCode === null) {
-		server.kill('SIGTERM');
-		await once(server, 'exit');
-	}
+	await server?.stop();
 });
 
 describe('session cookie under an https ORIGIN (own server)', () => {

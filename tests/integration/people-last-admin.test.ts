@@ -14,10 +14,7 @@
 // the test makes that race certain: it holds the admin rows locked in its own
 // transaction until both requests are waiting for them, then lets go.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawn, type ChildProcess } from 'node:child_process';
-import { once } from 'node:events';
 import { createHash, randomBytes, randomUUID } from 'node:crypto';
-import { closeSync, mkdirSync, openSync, readFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { join } from 'node:path';
 import pg from 'pg';
@@ -26,13 +23,14 @@ import { ensureEnv, projectRoot } from '../../scripts/lib/env.mjs';
 import { ensurePostgres, recreateDatabase, dropDatabase, databaseUrl } from '../../scripts/lib/postgres.mjs';
 import { createSequelize } from '../../src/lib/server/db/index';
 import { createMigrator } from '../../src/lib/server/db/migrator';
+import { ownServer, type OwnServer } from '../support/own-server';
 
 const fileEnv = ensureEnv() as Record<string, string>;
 const tag = `${Date.now().toString(36)}${randomBytes(2).toString('hex')}`;
 // A database of its own per run (two checkouts' runs never share one).
 const SCRATCH = `spanline_last_admin_${tag}`;
 const logPath = join(projectRoot, '.data', 'test-logs', `people-last-admin-${tag}.log`);
-let server: ChildProcess | null = null;
+let server: OwnServer | null = null;
 let origin = '';
 let db: pg.Client;
 
@@ -156,40 +154,20 @@ beforeAll(async () => {
 
 	const port = await freePort();
 	origin = `http://127.0.0.1:${port}`;
-	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
-	const fd = openSync(logPath, 'w');
-	server = spawn('node', ['build'], {
-		cwd: projectRoot,
+	server = await ownServer({
+		port,
+		logPath,
 		env: {
-			...process.env,
 			AUTH_SECRET: process.env.AUTH_SECRET ?? fileEnv.AUTH_SECRET,
 			DATABASE_URL: databaseUrl(SCRATCH),
-			PORT: String(port),
-			HOST: '127.0.0.1',
-			ORIGIN: origin,
 			ADDRESS_HEADER: 'x-forwarded-for',
 			XFF_DEPTH: '1'
-		},
-		stdio: ['ignore', fd, fd]
-	});
-	closeSync(fd);
-	for (const until = Date.now() + 30_000; ; ) {
-		if (server.exitCode !== null) throw new Error(`own server exited with ${server.exitCode}: ${readFileSync(logPath, 'utf8').slice(-2000)}`);
-		try {
-			if ((await fetch(`${origin}/api/v1/health`)).ok) break;
-		} catch {
-			/* not listening yet */
 		}
-		if (Date.now() > until) throw new Error(`own server did not start; see ${logPath}`);
-		await new Promise((r) => setTimeout(r, 200));
-	}
+	});
 });
 
 afterAll(async () => {
-	if (server && server.exitCode === null) {
-		server.kill('SIGTERM');
-		await once(server, 'exit');
-	}
+	await server?.stop();
 	await db?.end();
 	await dropDatabase(SCRATCH);
 });

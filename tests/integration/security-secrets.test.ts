@@ -9,20 +9,19 @@
 // demo passwords and the token. Its own server, because the log of the shared
 // server is only complete once that server has exited.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawn, type ChildProcess } from 'node:child_process';
-import { once } from 'node:events';
 import { randomBytes } from 'node:crypto';
-import { closeSync, existsSync, mkdirSync, openSync, readFileSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { ensureEnv, projectRoot } from '../../scripts/lib/env.mjs';
 import { DEMO_ACCOUNTS } from '../../src/lib/server/db/seed-data';
+import { ownServer, type OwnServer } from '../support/own-server';
 
 const fileEnv = ensureEnv() as Record<string, string>;
 const port = 3300 + Math.floor(Math.random() * 200);
 const origin = `http://127.0.0.1:${port}`;
 // Outside test-results/, which the next `npm test` empties.
 const logPath = join(projectRoot, '.data', 'test-logs', `security-secrets-server-${port}.log`);
-let server: ChildProcess;
+let server: OwnServer;
 
 /** Everything the server sent back, headers and bodies, to search for secrets too. */
 const received: string[] = [];
@@ -61,31 +60,11 @@ async function signIn(email: string, password: string) {
 }
 
 beforeAll(async () => {
-	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
-	const fd = openSync(logPath, 'w');
-	server = spawn('node', ['build'], {
-		cwd: projectRoot,
-		env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: origin },
-		stdio: ['ignore', fd, fd]
-	});
-	closeSync(fd);
-	const until = Date.now() + 30_000;
-	for (;;) {
-		try {
-			if ((await fetch(`${origin}/api/v1/health`)).ok) break;
-		} catch {
-			/* not listening yet */
-		}
-		if (Date.now() > until) throw new Error(`own server did not start; see ${logPath}`);
-		await new Promise((r) => setTimeout(r, 200));
-	}
+	server = await ownServer({ port, logPath });
 });
 
 afterAll(async () => {
-	if (server && server.exitCode === null) {
-		server.kill('SIGTERM');
-		await once(server, 'exit');
-	}
+	await server?.stop();
 });
 
 describe('secrets stay out of logs and responses', () => {
@@ -155,8 +134,7 @@ describe('secrets stay out of logs and responses', () => {
 
 	it('the server log holds none of the secrets, and every request line has a request id', async () => {
 		// Give pino's asynchronous writer a moment, then stop the server so everything is flushed.
-		server.kill('SIGTERM');
-		await once(server, 'exit');
+		await server.stop();
 		const log = readFileSync(logPath, 'utf8');
 		const lines = log.split('\n').filter(Boolean);
 		const requests = lines.filter((l) => l.startsWith('{')).map((l) => JSON.parse(l));
