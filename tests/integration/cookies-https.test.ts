@@ -15,12 +15,11 @@
 // open: over http the cookie carries no `__Secure-` prefix (a browser rejects
 // a `__Secure-` cookie without Secure) and it signs the next request in.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createServer } from 'node:net';
 import { join } from 'node:path';
 import { ensureEnv, projectRoot } from '../../scripts/lib/env.mjs';
 import { demoAccount, testAddress } from '../support/session';
 import { baseUrl } from '../support/env';
-import { ownServer, type OwnServer } from '../support/own-server';
+import { freePort, ownServer, type OwnServer } from '../support/own-server';
 
 const fileEnv = ensureEnv() as Record<string, string>;
 const engineer = demoAccount('test_engineer');
@@ -31,19 +30,6 @@ let local = '';
 /** What the app believes it is served as. */
 let httpsOrigin = '';
 
-/** A free loopback port from 4300–4399 (a range no other test or script uses). */
-async function freePort(): Promise<number> {
-	for (let attempt = 0; attempt < 50; attempt++) {
-		const p = 4300 + Math.floor(Math.random() * 100);
-		const free = await new Promise<boolean>((resolve) => {
-			const probe = createServer();
-			probe.once('error', () => resolve(false));
-			probe.listen(p, '127.0.0.1', () => probe.close(() => resolve(true)));
-		});
-		if (free) return p;
-	}
-	throw new Error('no free port in 4300–4399');
-}
 
 interface SetCookie {
 	name: string;
@@ -89,7 +75,7 @@ async function me(connectTo: string, cookie: string) {
 }
 
 beforeAll(async () => {
-	port = await freePort();
+	port = await freePort(4300);
 	local = `http://127.0.0.1:${port}`;
 	httpsOrigin = `https://127.0.0.1:${port}`;
 	server = await ownServer({

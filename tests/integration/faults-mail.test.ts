@@ -6,9 +6,8 @@
 // The instance has a database of its own: the shared test server retries due
 // mail of its database too, and would deliver our message to the mail fake.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { once } from 'node:events';
-import { closeSync, mkdirSync, openSync } from 'node:fs';
 import net from 'node:net';
 import { join } from 'node:path';
 import pg from 'pg';
@@ -18,11 +17,12 @@ import { databaseUrl, dropDatabase, recreateDatabase } from '../../scripts/lib/p
 
 const DB = 'spanline_faults_mail';
 import { DEMO_ACCOUNTS } from '../../src/lib/server/db/seed-data';
+import { ownServer, type OwnServer } from '../support/own-server';
 
 const appPort = 4000 + Math.floor(Math.random() * 100);
 const origin = `http://127.0.0.1:${appPort}`;
 let smtpPort = 0;
-let server: ChildProcess;
+let server: OwnServer;
 let smtp: SMTPServer | null = null;
 let db: pg.Client;
 const received: { to: string[]; data: string }[] = [];
@@ -49,23 +49,11 @@ beforeAll(async () => {
 		const r = spawnSync('npx', ['tsx', script, ...(script.includes('migrate') ? ['up'] : [])], { cwd: projectRoot, env: { ...process.env, DATABASE_URL: databaseUrl(DB) }, encoding: 'utf8' });
 		if (r.status !== 0) throw new Error(`${script}: ${r.stdout}${r.stderr}`);
 	}
-	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
-	const fd = openSync(join(projectRoot, '.data', 'test-logs', `faults-mail-${appPort}.log`), 'w');
-	server = spawn('node', ['build'], {
-		cwd: projectRoot,
-		env: { ...process.env, DATABASE_URL: databaseUrl(DB), PORT: String(appPort), HOST: '127.0.0.1', ORIGIN: origin, SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtpPort), SMTP_SECURE: 'false', SMTP_IGNORE_TLS: 'true', SMTP_USER: '' },
-		stdio: ['ignore', fd, fd]
+	server = await ownServer({
+		port: appPort,
+		logPath: join(projectRoot, '.data', 'test-logs', `faults-mail-${appPort}.log`),
+		env: { DATABASE_URL: databaseUrl(DB), SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtpPort), SMTP_SECURE: 'false', SMTP_IGNORE_TLS: 'true', SMTP_USER: '' }
 	});
-	closeSync(fd);
-	for (const until = Date.now() + 30_000; ; ) {
-		try {
-			if ((await fetch(`${origin}/api/v1/health`)).ok) break;
-		} catch {
-			/* not yet */
-		}
-		if (Date.now() > until) throw new Error('server did not start');
-		await new Promise((r) => setTimeout(r, 200));
-	}
 	db = new pg.Client({ connectionString: databaseUrl(DB) });
 	await db.connect();
 });
@@ -73,10 +61,7 @@ beforeAll(async () => {
 afterAll(async () => {
 	await db?.end();
 	if (smtp) await new Promise((r) => smtp!.close(() => r(undefined)));
-	if (server && server.exitCode === null) {
-		server.kill('SIGTERM');
-		await once(server, 'exit');
-	}
+	await server?.stop();
 	await dropDatabase(DB);
 });
 

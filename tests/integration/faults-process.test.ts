@@ -7,13 +7,14 @@
 //  - SIGTERM while an upload is in flight: the request finishes (201), new
 //    connections are refused, then the process exits by itself with code 0.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { once } from 'node:events';
-import { closeSync, mkdirSync, openSync, readFileSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import pg from 'pg';
 import { projectRoot } from '../../scripts/lib/env.mjs';
 import { DEMO_ACCOUNTS } from '../../src/lib/server/db/seed-data';
+import { ownServer } from '../support/own-server';
 
 const tag = Date.now().toString(36);
 const basePort = 3700 + Math.floor(Math.random() * 100) * 2;
@@ -34,25 +35,9 @@ function logged(port: number, responseText: string): string {
 }
 
 async function startServer(port: number, env: Record<string, string> = {}): Promise<ChildProcess> {
-	mkdirSync(join(projectRoot, '.data', 'test-logs'), { recursive: true });
-	const fd = openSync(logFile(port), 'a');
-	const child = spawn('node', ['build'], {
-		cwd: projectRoot,
-		env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: `http://127.0.0.1:${port}`, ...env },
-		stdio: ['ignore', fd, fd]
-	});
-	closeSync(fd);
-	live.push(child);
-	for (const until = Date.now() + 30_000; ; ) {
-		if (child.exitCode !== null) throw new Error(`server on ${port} exited with ${child.exitCode}`);
-		try {
-			if ((await fetch(`http://127.0.0.1:${port}/api/v1/health`)).ok) return child;
-		} catch {
-			/* not yet listening */
-		}
-		if (Date.now() > until) throw new Error(`server on ${port} did not start`);
-		await new Promise((r) => setTimeout(r, 200));
-	}
+	const own = await ownServer({ port, logPath: logFile(port), env, append: true });
+	live.push(own.process);
+	return own.process;
 }
 
 async function tokenOn(port: number): Promise<string> {

@@ -15,7 +15,6 @@
 // transaction until both requests are waiting for them, then lets go.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash, randomBytes, randomUUID } from 'node:crypto';
-import { createServer } from 'node:net';
 import { join } from 'node:path';
 import pg from 'pg';
 import type { Sequelize } from 'sequelize';
@@ -23,7 +22,7 @@ import { ensureEnv, projectRoot } from '../../scripts/lib/env.mjs';
 import { ensurePostgres, recreateDatabase, dropDatabase, databaseUrl } from '../../scripts/lib/postgres.mjs';
 import { createSequelize } from '../../src/lib/server/db/index';
 import { createMigrator } from '../../src/lib/server/db/migrator';
-import { ownServer, type OwnServer } from '../support/own-server';
+import { freePort, ownServer, type OwnServer } from '../support/own-server';
 
 const fileEnv = ensureEnv() as Record<string, string>;
 const tag = `${Date.now().toString(36)}${randomBytes(2).toString('hex')}`;
@@ -40,19 +39,6 @@ interface Person {
 	token: string;
 }
 
-/** A free loopback port from 4200–4299 (a range no other test or script uses). */
-async function freePort(): Promise<number> {
-	for (let attempt = 0; attempt < 50; attempt++) {
-		const port = 4200 + Math.floor(Math.random() * 100);
-		const free = await new Promise<boolean>((resolve) => {
-			const probe = createServer();
-			probe.once('error', () => resolve(false));
-			probe.listen(port, '127.0.0.1', () => probe.close(() => resolve(true)));
-		});
-		if (free) return port;
-	}
-	throw new Error('no free port in 4200–4299');
-}
 
 /** A person straight into the scratch database, with an API token (stored as its SHA-256 digest, as the app does). */
 async function person(role: string, label: string): Promise<Person> {
@@ -152,7 +138,7 @@ beforeAll(async () => {
 	db = new pg.Client({ connectionString: databaseUrl(SCRATCH) });
 	await db.connect();
 
-	const port = await freePort();
+	const port = await freePort(4200);
 	origin = `http://127.0.0.1:${port}`;
 	server = await ownServer({
 		port,

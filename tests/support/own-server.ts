@@ -5,6 +5,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { once } from 'node:events';
 import { closeSync, mkdirSync, openSync, readFileSync } from 'node:fs';
+import { createServer } from 'node:net';
 import { dirname } from 'node:path';
 import { projectRoot } from '../../scripts/lib/env.mjs';
 
@@ -48,4 +49,18 @@ export async function ownServer(opts: { port: number; logPath: string; env?: Rec
 			await exited;
 		}
 	};
+}
+
+/** A free loopback port in [from, from + 100): each test that needs one keeps to its own range. */
+export async function freePort(from: number): Promise<number> {
+	for (let attempt = 0; attempt < 50; attempt++) {
+		const port = from + Math.floor(Math.random() * 100);
+		const free = await new Promise<boolean>((resolve) => {
+			const probe = createServer();
+			probe.once('error', () => resolve(false));
+			probe.listen(port, '127.0.0.1', () => probe.close(() => resolve(true)));
+		});
+		if (free) return port;
+	}
+	throw new Error(`no free port in ${from}–${from + 99}`);
 }

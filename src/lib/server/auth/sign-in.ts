@@ -11,7 +11,7 @@ import { getModels, getSequelize } from '$lib/server/db';
 import * as audit from '$lib/server/audit';
 import { verifyPassword } from './password';
 import { normaliseEmail, toSessionUser, type SessionUser } from './users';
-import { select } from '$lib/server/db/sql';
+import { statement } from '$lib/server/db/sql';
 
 export const FAILURE_LIMIT = 10;
 export const FAILURE_WINDOW_MS = 15 * 60_000;
@@ -182,7 +182,7 @@ export async function completeLinkSignIn(rawEmail: string, ctx: AttemptContext):
 export async function activeUser(id: string): Promise<SessionUser | null> {
 	// Runs on every signed-in page request: one plain statement, no model instance.
 	if (!UUID.test(id)) return null;
-	const [user] = await select<{ id: string; name: string | null; email: string; role: string }>('SELECT id, name, email, role FROM users WHERE id = $1 AND active', [id]);
+	const [user] = await statement<{ id: string; name: string | null; email: string; role: string }>('SELECT id, name, email, role FROM users WHERE id = $1 AND active', [id]);
 	return user ? toSessionUser(user) : null;
 }
 

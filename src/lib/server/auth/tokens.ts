@@ -8,7 +8,7 @@ import { getModels, getSequelize } from '$lib/server/db';
 import * as audit from '$lib/server/audit';
 import { digest, newSecret } from './secrets';
 import { toSessionUser, type SessionUser } from './users';
-import { select } from '$lib/server/db/sql';
+import { statement } from '$lib/server/db/sql';
 import * as identity from './identity-cache';
 
 export const TOKEN_PREFIX = 'spl_';
@@ -155,6 +155,14 @@ export async function revokeToken(ctx: Context, id: number, mayRevokeOthers: boo
 	});
 }
 
+/** Record a token's use, at most once per LAST_USED_RESOLUTION_MS; returns the last-use time now on record. */
+async function noteUse(tokenId: string, lastUsedAt: number | null): Promise<number> {
+	const now = Date.now();
+	if (lastUsedAt !== null && now - lastUsedAt <= LAST_USED_RESOLUTION_MS) return lastUsedAt;
+	await statement('UPDATE api_tokens SET last_used_at = now() WHERE id = $1', [tokenId]);
+	return now;
+}
+
 /**
  * The user a bearer token acts for, or null when the token is unknown,
  * revoked, expired or its owner deactivated.
@@ -164,26 +172,18 @@ export async function userForToken(token: string): Promise<SessionUser | null> {
 	const hash = digest(token);
 	const known = identity.tokenByHash(hash);
 	if (known) {
-		if (known.lastUsedAt === null || Date.now() - known.lastUsedAt > LAST_USED_RESOLUTION_MS) {
-			known.lastUsedAt = Date.now();
-			await select('UPDATE api_tokens SET last_used_at = now() WHERE id = $1', [known.tokenId]);
-		}
+		known.lastUsedAt = await noteUse(known.tokenId, known.lastUsedAt);
 		return known.user;
 	}
 	// One plain statement: it runs on every API request, so no model instances.
-	const [row] = await select<{ id: string; name: string | null; email: string; role: string; token_id: string; last_used_at: Date | null; expires_at: Date | null }>(
+	const [row] = await statement<{ id: string; name: string | null; email: string; role: string; token_id: string; last_used_at: Date | null; expires_at: Date | null }>(
 		`SELECT u.id, u.name, u.email, u.role, t.id AS token_id, t.last_used_at, t.expires_at
 		   FROM api_tokens t JOIN users u ON u.id = t.user_id
 		  WHERE t.token_hash = $1 AND t.revoked_at IS NULL AND (t.expires_at IS NULL OR t.expires_at > now()) AND u.active`,
 		[hash]
 	);
 	if (!row) return null;
-	const now = Date.now();
-	let lastUsedAt = row.last_used_at ? new Date(row.last_used_at).getTime() : null;
-	if (lastUsedAt === null || now - lastUsedAt > LAST_USED_RESOLUTION_MS) {
-		await select('UPDATE api_tokens SET last_used_at = now() WHERE id = $1', [row.token_id]);
-		lastUsedAt = now;
-	}
+	const lastUsedAt = await noteUse(String(row.token_id), row.last_used_at ? new Date(row.last_used_at).getTime() : null);
 	const user = toSessionUser(row);
 	identity.rememberToken(hash, { user, tokenId: String(row.token_id), expiresAt: row.expires_at ? new Date(row.expires_at).getTime() : null, lastUsedAt });
 	return user;

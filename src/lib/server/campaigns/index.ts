@@ -1,4 +1,4 @@
-import { select } from '../db/sql';
+import { statement } from '../db/sql';
 
 /** A campaign as pages and the API see it. */
 export interface CampaignListItem {
@@ -31,7 +31,7 @@ interface CampaignRow {
 
 /** All campaigns, newest first, with their run counts (one query, no N+1). */
 export async function listCampaigns(): Promise<CampaignListItem[]> {
-	const rows = await select<CampaignRow>(
+	const rows = await statement<CampaignRow>(
 		`SELECT c.id, c.code, c.name, c.kind, c.status, f.name AS facility_name, c.planned_runs,
 		        c.start_date, c.end_date,
 		        COUNT(r.id) FILTER (WHERE NOT COALESCE(r.is_tare, false)) AS run_count,
@@ -65,7 +65,7 @@ export interface CampaignDetail {
 
 /** One campaign with its facility and configurations, or null: one statement (it is read on every campaign page and API call). */
 export async function getCampaign(id: number): Promise<CampaignDetail | null> {
-	const [row] = await select<{
+	const [row] = await statement<{
 		id: number;
 		code: string;
 		name: string;

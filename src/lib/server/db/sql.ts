@@ -15,7 +15,7 @@ interface Manager {
 }
 
 /** Rows of one parameterised statement ($1, $2, …); values are sent separately, never spliced into the text. */
-export async function select<T>(text: string, values: readonly unknown[] = []): Promise<T[]> {
+export async function statement<T = unknown>(text: string, values: readonly unknown[] = []): Promise<T[]> {
 	const manager = getSequelize().connectionManager as unknown as Manager;
 	const connection = await manager.getConnection({ type: 'SELECT' });
 	const started = performance.now();

@@ -18,7 +18,7 @@ import { fromImportError, MAX_XLSX_BYTES, resolveMapping } from './import';
 import { reduce, ReferenceMissing } from './reduce';
 import { loadReduceContext, readSamples, writeReduction, type Actor } from './store';
 import type { ReductionSettingsInput } from './schemas';
-import { select } from '../db/sql';
+import { statement } from '../db/sql';
 import type { PointDto, PointValues, ReductionDto, RunDetail, RunSummary } from '../../run-types';
 
 export type { PointDto, ReductionDto, RunDetail, RunSummary } from '../../run-types';
@@ -79,7 +79,7 @@ interface RunDetailRow {
 
 /** Run detail in one statement (run, configuration, source files, reduction versions with authors, current reduction). */
 export async function getRun(id: number, role: Role | null): Promise<RunDetail | null> {
-	const [row] = await select<RunDetailRow>(
+	const [row] = await statement<RunDetailRow>(
 		`SELECT r.id, r.campaign_id, r.run_number, r.kind, r.state, r.is_tare, r.tare_run_id, r.repeat_of_run_id, r.conditions, r.notes,
 		        c.id AS config_id, c.name AS config_name, c.version AS config_version,
 		        (SELECT coalesce(json_agg(json_build_object('id', f.id, 'name', f.name, 'size', f.size, 'sha256', f.sha256, 'sheet', f.sheet,
@@ -186,7 +186,7 @@ interface PointRow {
 
 /** Points of the current reduction, or of `version` (null when the run or version does not exist), in one statement (points as one JSON array: a run can have thousands, and no model instances are built). */
 export async function getPoints(runId: number, version?: number): Promise<{ reduction: ReductionDto; points: PointDto[] } | null> {
-	const [red] = await select<{ id: number; version: number; settings: Record<string, unknown>; fits: Record<string, unknown> | null; corrections: Record<string, unknown> | null; points: PointRow[] }>(
+	const [red] = await statement<{ id: number; version: number; settings: Record<string, unknown>; fits: Record<string, unknown> | null; corrections: Record<string, unknown> | null; points: PointRow[] }>(
 		`SELECT d.id, d.version, d.settings, d.fits, d.corrections,
 		        (SELECT coalesce(json_agg(json_build_object('idx', p.idx, 'alpha_deg', p.alpha_deg, 'cl', p.cl, 'cd', p.cd, 'cm', p.cm, 'q_pa', p.q_pa,
 		                                                    'velocity', p.velocity, 'reynolds', p.reynolds, 'mach', p.mach, 'uncertainty', p.uncertainty,
